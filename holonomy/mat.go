@@ -102,6 +102,10 @@ func Mul(dst, a, b *Mat) {
 		panic(fmt.Sprintf("holonomy: Mul: %d×%d · %d×%d into %d×%d", a.R, a.C, b.R, b.C, dst.R, dst.C))
 	}
 	n, m, p := a.R, a.C, b.C
+	if n == 4 && m == 4 && p == 4 {
+		mul4(dst.Data, a.Data, b.Data)
+		return
+	}
 	for i := 0; i < n; i++ {
 		row := dst.Data[i*p : (i+1)*p]
 		for j := range row {
@@ -126,6 +130,10 @@ func MulAH(dst, a, b *Mat) {
 		panic(fmt.Sprintf("holonomy: MulAH: (%d×%d)† · %d×%d into %d×%d", a.R, a.C, b.R, b.C, dst.R, dst.C))
 	}
 	n, m, p := a.C, a.R, b.C
+	if n == 4 && m == 4 && p == 4 {
+		mul4AH(dst.Data, a.Data, b.Data)
+		return
+	}
 	for i := 0; i < n; i++ {
 		row := dst.Data[i*p : (i+1)*p]
 		for j := range row {
@@ -151,6 +159,10 @@ func MulAH(dst, a, b *Mat) {
 func MulBH(dst, a, b *Mat) {
 	if a.C != b.C || dst.R != a.R || dst.C != b.R {
 		panic(fmt.Sprintf("holonomy: MulBH: %d×%d · (%d×%d)† into %d×%d", a.R, a.C, b.R, b.C, dst.R, dst.C))
+	}
+	if a.R == 4 && a.C == 4 && b.R == 4 {
+		mul4BH(dst.Data, a.Data, b.Data)
+		return
 	}
 	for i := 0; i < a.R; i++ {
 		arow := a.Data[i*a.C : (i+1)*a.C]
@@ -228,3 +240,83 @@ func mustSame(a, b *Mat) {
 		panic(fmt.Sprintf("holonomy: shapes %d×%d and %d×%d differ", a.R, a.C, b.R, b.C))
 	}
 }
+
+// mul4 sets dst = a·b for 4×4 row-major matrices, fully unrolled (the
+// tripod and other 4-level schemes spend their time here).
+func mul4(dst, a, b []complex128) {
+	dst, a, b = dst[:16:16], a[:16:16], b[:16:16]
+	b00, b01, b02, b03 := b[0], b[1], b[2], b[3]
+	b10, b11, b12, b13 := b[4], b[5], b[6], b[7]
+	b20, b21, b22, b23 := b[8], b[9], b[10], b[11]
+	b30, b31, b32, b33 := b[12], b[13], b[14], b[15]
+	for i := 0; i < 16; i += 4 {
+		r := a[i : i+4 : i+4]
+		a0, a1, a2, a3 := r[0], r[1], r[2], r[3]
+		d := dst[i : i+4 : i+4]
+		d[0] = a0*b00 + a1*b10 + a2*b20 + a3*b30
+		d[1] = a0*b01 + a1*b11 + a2*b21 + a3*b31
+		d[2] = a0*b02 + a1*b12 + a2*b22 + a3*b32
+		d[3] = a0*b03 + a1*b13 + a2*b23 + a3*b33
+	}
+}
+
+// mul4AH sets dst = a†·b for 4×4 row-major matrices, fully unrolled.
+func mul4AH(dst, a, b []complex128) {
+	dst, a, b = dst[:16:16], a[:16:16], b[:16:16]
+	b00, b01, b02, b03 := b[0], b[1], b[2], b[3]
+	b10, b11, b12, b13 := b[4], b[5], b[6], b[7]
+	b20, b21, b22, b23 := b[8], b[9], b[10], b[11]
+	b30, b31, b32, b33 := b[12], b[13], b[14], b[15]
+	for i := 0; i < 4; i++ {
+		a0, a1, a2, a3 := cconj(a[i]), cconj(a[4+i]), cconj(a[8+i]), cconj(a[12+i])
+		d := dst[4*i : 4*i+4 : 4*i+4]
+		d[0] = a0*b00 + a1*b10 + a2*b20 + a3*b30
+		d[1] = a0*b01 + a1*b11 + a2*b21 + a3*b31
+		d[2] = a0*b02 + a1*b12 + a2*b22 + a3*b32
+		d[3] = a0*b03 + a1*b13 + a2*b23 + a3*b33
+	}
+}
+
+// mul4BH sets dst = a·b† for 4×4 row-major matrices, fully unrolled.
+func mul4BH(dst, a, b []complex128) {
+	dst, a, b = dst[:16:16], a[:16:16], b[:16:16]
+	b00, b01, b02, b03 := cconj(b[0]), cconj(b[4]), cconj(b[8]), cconj(b[12])
+	b10, b11, b12, b13 := cconj(b[1]), cconj(b[5]), cconj(b[9]), cconj(b[13])
+	b20, b21, b22, b23 := cconj(b[2]), cconj(b[6]), cconj(b[10]), cconj(b[14])
+	b30, b31, b32, b33 := cconj(b[3]), cconj(b[7]), cconj(b[11]), cconj(b[15])
+	for i := 0; i < 16; i += 4 {
+		r := a[i : i+4 : i+4]
+		a0, a1, a2, a3 := r[0], r[1], r[2], r[3]
+		d := dst[i : i+4 : i+4]
+		d[0] = a0*b00 + a1*b10 + a2*b20 + a3*b30
+		d[1] = a0*b01 + a1*b11 + a2*b21 + a3*b31
+		d[2] = a0*b02 + a1*b12 + a2*b22 + a3*b32
+		d[3] = a0*b03 + a1*b13 + a2*b23 + a3*b33
+	}
+}
+
+// mulSqBH sets dst = a·b† for n×n row-major matrices; dst must not share
+// storage with a or b.
+func mulSqBH(dst, a, b []complex128, n int) {
+	if n == 4 {
+		mul4BH(dst, a, b)
+		return
+	}
+	dst, a, b = dst[:n*n], a[:n*n], b[:n*n]
+	for i := 0; i < n; i++ {
+		arow := a[i*n : i*n+n]
+		for j := 0; j < n; j++ {
+			brow := b[j*n : j*n+n]
+			brow = brow[:len(arow)]
+			var s complex128
+			for k, v := range arow {
+				s += v * cconj(brow[k])
+			}
+			dst[i*n+j] = s
+		}
+	}
+}
+
+// cconj returns the complex conjugate of x (inlined, unlike cmplx.Conj in
+// older compilers).
+func cconj(x complex128) complex128 { return complex(real(x), -imag(x)) }

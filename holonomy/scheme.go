@@ -71,8 +71,11 @@ func (s *Scheme) NewPoint() Point {
 func (s *Scheme) Dim() int { return len(s.Levels) }
 
 // Validate reports whether the scheme is well formed: 2–16 levels with
-// distinct names, channels joining two distinct existing levels with finite
-// factors, and computational levels that exist and are distinct.
+// distinct names, finite detunings and non-negative finite decay rates; at
+// least one channel, channels with distinct names joining two distinct
+// existing levels with finite non-zero factors (several channels may join the
+// same pair; their couplings add); and 1 to n computational levels that exist
+// and are distinct. Any coupling graph meeting these rules is accepted.
 func (s *Scheme) Validate() error {
 	n := len(s.Levels)
 	if n < 2 || n > MaxLevels {
@@ -94,7 +97,15 @@ func (s *Scheme) Validate() error {
 	if len(s.Channels) == 0 {
 		return errors.New("level scheme has no drive channels")
 	}
-	for _, c := range s.Channels {
+	chNames := make(map[string]bool, len(s.Channels))
+	for i, c := range s.Channels {
+		if c.Name == "" {
+			return fmt.Errorf("channel %d has no name", i)
+		}
+		if chNames[c.Name] {
+			return fmt.Errorf("channel name %q is used twice", c.Name)
+		}
+		chNames[c.Name] = true
 		if c.Lower < 0 || c.Lower >= n || c.Upper < 0 || c.Upper >= n {
 			return fmt.Errorf("channel %q joins a level that does not exist", c.Name)
 		}
@@ -105,8 +116,8 @@ func (s *Scheme) Validate() error {
 			return fmt.Errorf("channel %q: matrix-element factor must be finite and non-zero", c.Name)
 		}
 	}
-	if len(s.Computational) == 0 || len(s.Computational) >= n {
-		return fmt.Errorf("level scheme needs 1 to %d computational levels, has %d", n-1, len(s.Computational))
+	if len(s.Computational) == 0 || len(s.Computational) > n {
+		return fmt.Errorf("level scheme needs 1 to %d computational levels, has %d", n, len(s.Computational))
 	}
 	seen := make(map[int]bool)
 	for _, k := range s.Computational {
@@ -206,8 +217,14 @@ func Spin(twoS int, computational ...int) *Scheme {
 // SpinPoint writes into p the control point of a spin scheme made by Spin
 // for the Hamiltonian H = ω n·S with n = (sinθ cosφ, sinθ sinφ, cosθ):
 // drives ω sinθ e^{−iφ} on every channel and detunings ω cosθ·m.
+//
+// It panics if p is not shaped for a spin scheme (one more detuning than
+// drives).
 func SpinPoint(p Point, omega, theta, phi float64) {
 	n := len(p.Detuning)
+	if n < 2 || len(p.Drive) != n-1 {
+		panic("holonomy: SpinPoint: point is not shaped for a spin scheme")
+	}
 	s := float64(n-1) / 2
 	st, ct := math.Sincos(theta)
 	d := cmplx.Rect(omega*st, -phi)
@@ -217,6 +234,97 @@ func SpinPoint(p Point, omega, theta, phi float64) {
 	for k := 0; k < n; k++ {
 		p.Detuning[k] = omega * ct * (s - float64(k))
 	}
+}
+
+// TripodPoint writes into p the control point of the Tripod scheme in the
+// parametrisation of Duan, Cirac and Zoller, Science 292, 1695 (2001): real
+// drives
+//
+//	Ω₀ = Ω sinθ cosφ (channel p0),  Ω₁ = Ω sinθ sinφ (p1),  Ω_a = Ω cosθ (pa),
+//
+// with total Rabi frequency omega = Ω in rad/s and no controlled detuning.
+// At θ = 0 the dark subspace is spanned by the qubit levels g0 and g1, so
+// loops based there give holonomies acting on the qubit directly.
+//
+// It panics if p is not shaped for a tripod (3 drives, 4 detunings or nil).
+func TripodPoint(p Point, omega, theta, phi float64) {
+	if len(p.Drive) != 3 || (p.Detuning != nil && len(p.Detuning) != 4) {
+		panic("holonomy: TripodPoint: point is not shaped for a tripod")
+	}
+	st, ct := math.Sincos(theta)
+	sp, cp := math.Sincos(phi)
+	p.Drive[0] = complex(omega*st*cp, 0)
+	p.Drive[1] = complex(omega*st*sp, 0)
+	p.Drive[2] = complex(omega*ct, 0)
+	for k := range p.Detuning {
+		p.Detuning[k] = 0
+	}
+}
+
+// LambdaPoint writes into p the control point of the Lambda scheme in the
+// parametrisation of Sjöqvist et al., New J. Phys. 14, 103035 (2012):
+//
+//	Ω₀ = Ω sin(θ/2) e^{iφ} (channel p0),  Ω₁ = −Ω cos(θ/2) (channel p1),
+//
+// with Rabi frequency omega = Ω in rad/s. The drives couple e to the bright
+// state |b⟩ = sin(θ/2)e^{−iφ}|g0⟩ − cos(θ/2)|g1⟩ with Rabi frequency Ω; the
+// orthogonal qubit state is dark. A resonant pulse of area ∫Ω dt = 2π at
+// fixed (θ, φ) returns |b⟩ to itself with a sign change and so acts on the
+// qubit as n·σ with n = (sinθ cosφ, sinθ sinφ, cosθ).
+//
+// It panics if p is not shaped for a Λ scheme (2 drives, 3 detunings or nil).
+func LambdaPoint(p Point, omega, theta, phi float64) {
+	if len(p.Drive) != 2 || (p.Detuning != nil && len(p.Detuning) != 3) {
+		panic("holonomy: LambdaPoint: point is not shaped for a Λ scheme")
+	}
+	sh, ch := math.Sincos(theta / 2)
+	p.Drive[0] = cmplx.Rect(omega*sh, phi)
+	p.Drive[1] = complex(-omega*ch, 0)
+	for k := range p.Detuning {
+		p.Detuning[k] = 0
+	}
+}
+
+// LevelIndex returns the index of the level called name, or −1.
+func (s *Scheme) LevelIndex(name string) int {
+	for i, l := range s.Levels {
+		if l.Name == name {
+			return i
+		}
+	}
+	return -1
+}
+
+// ChannelIndex returns the index of the channel called name, or −1.
+func (s *Scheme) ChannelIndex(name string) int {
+	for i, c := range s.Channels {
+		if c.Name == name {
+			return i
+		}
+	}
+	return -1
+}
+
+// CheckPoint reports whether p is shaped for s (one drive per channel, one
+// detuning per level or none) and holds only finite values.
+func (s *Scheme) CheckPoint(p Point) error {
+	if len(p.Drive) != len(s.Channels) {
+		return fmt.Errorf("control point has %d drives for %d channels", len(p.Drive), len(s.Channels))
+	}
+	if p.Detuning != nil && len(p.Detuning) != len(s.Levels) {
+		return fmt.Errorf("control point has %d detunings for %d levels", len(p.Detuning), len(s.Levels))
+	}
+	for c, d := range p.Drive {
+		if !finite(real(d)) || !finite(imag(d)) {
+			return fmt.Errorf("channel %q: drive %v is not finite", s.Channels[c].Name, d)
+		}
+	}
+	for k, d := range p.Detuning {
+		if !finite(d) {
+			return fmt.Errorf("level %q: detuning %v is not finite", s.Levels[k].Name, d)
+		}
+	}
+	return nil
 }
 
 func halfName(twoS int) string {

@@ -1,0 +1,501 @@
+package holonomy
+
+import (
+	"errors"
+	"math"
+	"math/cmplx"
+	"strings"
+	"testing"
+)
+
+// geoOmega is a typical Rabi frequency, 2π × 1 MHz in rad/s.
+const geoOmega = 2 * math.Pi * 1e6
+
+// geoCone is the loop of Berry (1984): a field of fixed magnitude whose
+// direction circles the cone of polar angle theta, turns times, starting at
+// azimuth 0.
+func geoCone(theta float64, turns int) Loop {
+	return func(s float64, p Point) { SpinPoint(p, geoOmega, theta, 2*math.Pi*float64(turns)*s) }
+}
+
+// geoSector is the loop θ: 0 → θ₀ at φ = 0, φ: 0 → φ₀ at θ₀, θ: θ₀ → 0 at
+// φ₀ in angle space, each leg taking a third of the loop parameter, so that
+// samples fall on the corners when the number of points is a multiple of 3.
+// set writes the control point for the angles.
+func geoSector(th0, ph0 float64, set func(p Point, th, ph float64)) Loop {
+	return func(s float64, p Point) {
+		var th, ph float64
+		switch {
+		case s <= 1.0/3:
+			th, ph = th0*3*s, 0
+		case s <= 2.0/3:
+			th, ph = th0, ph0*(3*s-1)
+		default:
+			th, ph = th0*(3-3*s), ph0
+		}
+		set(p, th, ph)
+	}
+}
+
+// geoTripodDCZ sets the real couplings of Duan, Cirac and Zoller (2001).
+func geoTripodDCZ(p Point, th, ph float64) { TripodPoint(p, geoOmega, th, ph) }
+
+// geoTripodPhase sets Ω₀ = 0, Ω₁ = Ω sinθ e^{iφ}, Ω_a = Ω cosθ (Duan, Cirac
+// and Zoller 2001, the phase gate).
+func geoTripodPhase(p Point, th, ph float64) {
+	p.Drive[0] = 0
+	p.Drive[1] = cmplx.Rect(geoOmega*math.Sin(th), ph)
+	p.Drive[2] = complex(geoOmega*math.Cos(th), 0)
+}
+
+func geoRotation(al float64) *Mat {
+	c, s := math.Cos(al), math.Sin(al)
+	return NewMatFrom(2, 2, []complex128{complex(c, 0), complex(-s, 0), complex(s, 0), complex(c, 0)})
+}
+
+// geoExpect returns ⟨a|U|b⟩ for vectors a, b.
+func geoExpect(u *Mat, a, b []complex128) complex128 {
+	var s complex128
+	for i := range a {
+		for j := range b {
+			s += cmplx.Conj(a[i]) * u.At(i, j) * b[j]
+		}
+	}
+	return s
+}
+
+func TestBerryPhaseSpinHalfCone(t *testing.T) {
+	// Berry, Proc. R. Soc. A 392, 45 (1984), eq. (13) and §3: a spin in the
+	// state m along a field whose direction circles a cone of solid angle
+	// Ω(C) = 2π(1 − cos θ) acquires γ_m = −m Ω(C); for spin-½ aligned with
+	// the field, γ = −π(1 − cos θ), and +π(1 − cos θ) anti-aligned.
+	for _, th := range []float64{0.2, 0.7, 1.3, 2.0, 2.8} {
+		gp := -math.Pi * (1 - math.Cos(th))
+		// Both levels computational: two one-state clusters, U = Σ e^{iγ±}|n±⟩⟨n±|.
+		w := NewWilson(Spin(1, 0, 1))
+		res, err := w.Adaptive(geoCone(th, 1), AdaptiveOptions{Tol: 1e-11, Extrapolate: true})
+		if err != nil {
+			t.Fatalf("θ=%g: %v", th, err)
+		}
+		c, s := math.Cos(th/2), math.Sin(th/2)
+		up := []complex128{complex(c, 0), complex(s, 0)}  // along n at φ = 0
+		dn := []complex128{complex(-s, 0), complex(c, 0)} // against n
+		for _, chk := range []struct {
+			name string
+			got  complex128
+			want complex128
+		}{
+			{"aligned", geoExpect(res.U, up, up), cmplx.Exp(complex(0, gp))},
+			{"anti-aligned", geoExpect(res.U, dn, dn), cmplx.Exp(complex(0, -gp))},
+			{"mixing", geoExpect(res.U, dn, up), 0},
+		} {
+			if d := cmplx.Abs(chk.got - chk.want); d > 1e-9 {
+				t.Errorf("θ=%g %s: got %v want %v (|Δ| = %.2g)", th, chk.name, chk.got, chk.want, d)
+			} else {
+				t.Logf("θ=%.1f %s: |Δ| = %.1e (%d points)", th, chk.name, d, res.Points)
+			}
+		}
+		if math.Abs(res.Gap.Min-geoOmega) > 1e-6*geoOmega {
+			t.Errorf("θ=%g: gap %g, want ω = %g", th, res.Gap.Min, geoOmega)
+		}
+		// Only |m=+½⟩ computational (k = 1) while it is the heavier one.
+		if th < math.Pi/2 {
+			w1 := NewWilson(Spin(1, 0))
+			r1, err := w1.Adaptive(geoCone(th, 1), AdaptiveOptions{Tol: 1e-11, Extrapolate: true})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if d := cmplx.Abs(r1.U.Data[0] - cmplx.Exp(complex(0, gp))); d > 1e-9 {
+				t.Errorf("θ=%g k=1: U = %v, want e^{iγ}, γ = %g", th, r1.U.Data[0], gp)
+			}
+		}
+	}
+}
+
+func TestBerryPhaseSpinOne(t *testing.T) {
+	// Berry (1984): γ_m = −m Ω(C); for spin 1, m = +1 gets twice the spin-½
+	// phase, −2π(1 − cos θ), m = 0 none and m = −1 the opposite.
+	for _, th := range []float64{0.3, 0.9, 1.7} {
+		om := 2 * math.Pi * (1 - math.Cos(th))
+		sc := Spin(2, 0, 1, 2)
+		w := NewWilson(sc)
+		res, err := w.Adaptive(geoCone(th, 1), AdaptiveOptions{Tol: 1e-11, Extrapolate: true})
+		if err != nil {
+			t.Fatalf("θ=%g: %v", th, err)
+		}
+		// Eigenstates |n, m⟩ at the base point, from H = ω n·S.
+		p := sc.NewPoint()
+		SpinPoint(p, geoOmega, th, 0)
+		h, v, vals := NewMat(3, 3), NewMat(3, 3), make([]float64, 3)
+		sc.Hamiltonian(h, p)
+		NewEigen(3).Factorize(h, vals, v)
+		for i, m := range []float64{-1, 0, 1} { // ascending energy ωm
+			col := []complex128{v.At(0, i), v.At(1, i), v.At(2, i)}
+			got := geoExpect(res.U, col, col)
+			want := cmplx.Exp(complex(0, -m*om))
+			if d := cmplx.Abs(got - want); d > 1e-9 {
+				t.Errorf("θ=%g m=%g: ⟨n,m|U|n,m⟩ = %v, want %v", th, m, got, want)
+			}
+		}
+		if th < 1 { // k = 1 with m = +1 alone
+			r1, err := NewWilson(Spin(2, 0)).Adaptive(geoCone(th, 1), AdaptiveOptions{Tol: 1e-11, Extrapolate: true})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if d := cmplx.Abs(r1.U.Data[0] - cmplx.Exp(complex(0, -om))); d > 1e-9 {
+				t.Errorf("θ=%g m=+1 alone: %v, want phase %g", th, r1.U.Data[0], -om)
+			} else {
+				t.Logf("θ=%.1f spin-1 m=+1: |Δ| = %.1e", th, d)
+			}
+		}
+	}
+}
+
+func TestSpinHalfBothLevelsFromPole(t *testing.T) {
+	// Berry (1984) for both states of a spin-½ carried around the sector
+	// loop from the north pole, where the eigenstates are the computational
+	// levels: U = diag(e^{−iΩ/2}, e^{+iΩ/2}) with the enclosed solid angle
+	// Ω = (1 − cos θ₀)φ₀ — geometric phases only.
+	for _, a := range [][2]float64{{0.8, 1.1}, {2.2, 4}} {
+		sol := (1 - math.Cos(a[0])) * a[1]
+		loop := geoSector(a[0], a[1], func(p Point, th, ph float64) { SpinPoint(p, geoOmega, th, ph) })
+		res, err := NewWilson(Spin(1, 0, 1)).Adaptive(loop, AdaptiveOptions{Points: 48, Tol: 1e-11, Extrapolate: true})
+		if err != nil {
+			t.Fatal(err)
+		}
+		want := NewMatFrom(2, 2, []complex128{cmplx.Exp(complex(0, -sol/2)), 0, 0, cmplx.Exp(complex(0, sol/2))})
+		if d := FrobeniusDist(res.U, want); d > 1e-9 {
+			t.Errorf("%v: U =\n%vwant\n%v", a, res.U, want)
+		}
+	}
+}
+
+func TestDCZTripodRealCouplings(t *testing.T) {
+	// Duan, Cirac and Zoller, Science 292, 1695 (2001): with real couplings
+	// Ω₀ = Ω sinθ cosφ, Ω₁ = Ω sinθ sinφ, Ω_a = Ω cosθ, the loop
+	// θ: 0→θ₀ (φ = 0), φ: 0→φ₀ (θ = θ₀), θ: θ₀→0 (φ = φ₀) rotates the qubit
+	// by the enclosed solid angle α = (1 − cos θ₀)φ₀. Derived with the
+	// connection A_φ = cos θ σ_y of the dark states D₁ = cosθ(cosφ|0⟩ +
+	// sinφ|1⟩) − sinθ|a⟩, D₂ = −sinφ|0⟩ + cosφ|1⟩ and the package sign
+	// convention: |0⟩ → cos α|0⟩ + sin α|1⟩.
+	w := NewWilson(Tripod())
+	for _, a := range [][2]float64{{math.Pi / 3, math.Pi / 2}, {1.2, 2.5}, {0.4, 0.7}, {math.Pi / 2, math.Pi / 4}} {
+		al := (1 - math.Cos(a[0])) * a[1]
+		res, err := w.Adaptive(geoSector(a[0], a[1], geoTripodDCZ), AdaptiveOptions{Points: 48, Tol: 1e-10, Extrapolate: true})
+		if err != nil {
+			t.Fatalf("%v: %v", a, err)
+		}
+		d := FrobeniusDist(res.U, geoRotation(al))
+		if d > 1e-8 {
+			t.Errorf("(θ₀, φ₀) = %v: U =\n%vwant rotation by %g (‖ΔU‖ = %.2g)", a, res.U, al, d)
+		}
+		t.Logf("(θ₀, φ₀) = (%.3f, %.3f): ‖U − R(α)‖ = %.1e with %d points (estimate %.1e)", a[0], a[1], d, res.Points, res.ErrorEstimate)
+		if math.Abs(res.Gap.Min-geoOmega/2) > 1e-6*geoOmega {
+			t.Errorf("gap %g, want Ω/2", res.Gap.Min)
+		}
+	}
+}
+
+func TestDCZTripodPhaseGate(t *testing.T) {
+	// Duan, Cirac and Zoller (2001): with Ω₀ = 0, Ω₁ = Ω sinθ e^{iφ},
+	// Ω_a = Ω cosθ, the same loop leaves |0⟩ alone and gives |1⟩ the phase
+	// −φ₀ sin²θ₀ (magnitude φ₀ sin²θ₀; the sign from A_φ = −sin²θ for the
+	// dark state cosθ|1⟩ − sinθ e^{iφ}|a⟩ and the package convention).
+	w := NewWilson(Tripod())
+	for _, a := range [][2]float64{{math.Pi / 3, math.Pi / 2}, {1.2, 2.5}, {0.5, 5}} {
+		ph := -a[1] * math.Pow(math.Sin(a[0]), 2)
+		res, err := w.Adaptive(geoSector(a[0], a[1], geoTripodPhase), AdaptiveOptions{Points: 48, Tol: 1e-10, Extrapolate: true})
+		if err != nil {
+			t.Fatalf("%v: %v", a, err)
+		}
+		want := NewMatFrom(2, 2, []complex128{1, 0, 0, cmplx.Exp(complex(0, ph))})
+		d := FrobeniusDist(res.U, want)
+		if d > 1e-8 {
+			t.Errorf("(θ₀, φ₀) = %v: U =\n%vwant diag(1, e^{%gi})", a, res.U, ph)
+		}
+		t.Logf("(θ₀, φ₀) = (%.3f, %.3f): ‖U − diag(1, e^{iγ})‖ = %.1e with %d points", a[0], a[1], d, res.Points)
+	}
+}
+
+// geoSmoothTripod is a smooth loop with complex drives and no symmetry.
+func geoSmoothTripod(s float64, p Point) {
+	x := 2 * math.Pi * s
+	sx := math.Sin(x / 2)
+	th := 1.1 * sx * sx
+	ph := 0.4*math.Sin(x) + 0.9*(1-math.Cos(x))
+	p.Drive[0] = cmplx.Rect(geoOmega*math.Sin(th)*math.Cos(ph), 0.3*math.Sin(x))
+	p.Drive[1] = cmplx.Rect(geoOmega*math.Sin(th)*math.Sin(ph), 0.5*(1-math.Cos(x)))
+	p.Drive[2] = complex(geoOmega*math.Cos(th), 0)
+}
+
+func TestWilsonConvergenceOrder(t *testing.T) {
+	// The discrete Wilson loop is a symmetric one-step method (reversing a
+	// step inverts its factor), so its error on a smooth loop falls as 1/N²
+	// with an even expansion; Richardson extrapolation then gives 1/N⁴.
+	// Measured against the exact Berry phase (Berry 1984) and, for a
+	// generic tripod loop, against a converged extrapolated reference.
+	order := func(ns []int, errs []float64) float64 {
+		// least-squares slope of log err against log N
+		var sx, sy, sxx, sxy float64
+		for i := range ns {
+			x, y := math.Log(float64(ns[i])), math.Log(errs[i])
+			sx, sy, sxx, sxy = sx+x, sy+y, sxx+x*x, sxy+x*y
+		}
+		m := float64(len(ns))
+		return -(m*sxy - sx*sy) / (m*sxx - sx*sx)
+	}
+	ns := []int{32, 64, 128, 256, 512}
+	// Spin-½ cone, exact phase.
+	{
+		th := 0.9
+		want := cmplx.Exp(complex(0, -math.Pi*(1-math.Cos(th))))
+		w := NewWilson(Spin(1, 0))
+		u := NewMat(1, 1)
+		var errs []float64
+		for _, n := range ns {
+			if _, err := w.Loop(geoCone(th, 1), n, u); err != nil {
+				t.Fatal(err)
+			}
+			errs = append(errs, cmplx.Abs(u.Data[0]-want))
+		}
+		q := order(ns, errs)
+		t.Logf("spin-½ cone: errors %.2e … %.2e, order %.3f", errs[0], errs[len(errs)-1], q)
+		if q < 1.95 {
+			t.Errorf("spin-½ cone: convergence order %.3f < 2", q)
+		}
+	}
+	// Generic tripod loop (non-Abelian), reference by extrapolation.
+	{
+		w := NewWilson(Tripod())
+		ref, err := w.Adaptive(geoSmoothTripod, AdaptiveOptions{Tol: 1e-13, Extrapolate: true})
+		if err != nil {
+			t.Fatal(err)
+		}
+		u, u2 := NewMat(2, 2), NewMat(2, 2)
+		var errs, rerrs []float64
+		for _, n := range ns {
+			if _, err := w.Loop(geoSmoothTripod, n, u); err != nil {
+				t.Fatal(err)
+			}
+			errs = append(errs, FrobeniusDist(u, ref.U))
+			if _, err := w.Loop(geoSmoothTripod, 2*n, u2); err != nil {
+				t.Fatal(err)
+			}
+			r := NewMat(2, 2)
+			richardson(w.tr.pol, r, u2, u, NewMat(2, 2))
+			rerrs = append(rerrs, FrobeniusDist(r, ref.U))
+		}
+		q, qr := order(ns, errs), order(ns[:4], rerrs[:4])
+		t.Logf("tripod loop: errors %.2e … %.2e, order %.3f; extrapolated %.2e … %.2e, order %.3f (reference with %d points)",
+			errs[0], errs[len(errs)-1], q, rerrs[0], rerrs[3], qr, ref.Points)
+		if q < 1.95 {
+			t.Errorf("tripod: convergence order %.3f < 2", q)
+		}
+		if qr < 3.8 {
+			t.Errorf("tripod: extrapolated order %.3f < 4", qr)
+		}
+	}
+}
+
+func TestWilsonReversedLoopAndGauge(t *testing.T) {
+	// Reversing a loop inverts its holonomy (path-ordered exponential), and
+	// a change of fixed level phases D = diag(e^{iχ_k}) — drive phases
+	// shifted by χ_u − χ_l — transforms it as D_c U D_c†.
+	w := NewWilson(Tripod())
+	const n = 2048
+	u, ur, ug := NewMat(2, 2), NewMat(2, 2), NewMat(2, 2)
+	if _, err := w.Loop(geoSmoothTripod, n, u); err != nil {
+		t.Fatal(err)
+	}
+	if e := UnitarityError(u); e > 1e-13 {
+		t.Errorf("holonomy not unitary: ‖U†U − I‖ = %g", e)
+	}
+	rev := func(s float64, p Point) { geoSmoothTripod(1-s, p) }
+	if _, err := w.Loop(rev, n, ur); err != nil {
+		t.Fatal(err)
+	}
+	prod := NewMat(2, 2)
+	Mul(prod, u, ur)
+	if d := FrobeniusDist(prod, Identity(2)); d > 1e-12 {
+		t.Errorf("U(reversed)·U = \n%v", prod)
+	}
+	chi := []float64{0.3, -1.1, 0.5, 0.2} // g0, g1, a, e
+	tri := Tripod()
+	gauged := func(s float64, p Point) {
+		geoSmoothTripod(s, p)
+		for c, ch := range tri.Channels {
+			p.Drive[c] *= cmplx.Exp(complex(0, chi[ch.Upper]-chi[ch.Lower]))
+		}
+	}
+	if _, err := w.Loop(gauged, n, ug); err != nil {
+		t.Fatal(err)
+	}
+	d := NewMatFrom(2, 2, []complex128{cmplx.Exp(complex(0, chi[0])), 0, 0, cmplx.Exp(complex(0, chi[1]))})
+	tmp, want := NewMat(2, 2), NewMat(2, 2)
+	Mul(tmp, d, u)
+	MulBH(want, tmp, d)
+	if dd := FrobeniusDist(ug, want); dd > 1e-12 {
+		t.Errorf("level-phase change: got\n%vwant\n%v", ug, want)
+	}
+}
+
+func TestWilsonLoopAllocatesNothing(t *testing.T) {
+	for _, c := range []struct {
+		s    *Scheme
+		loop Loop
+	}{
+		{Tripod(), geoSmoothTripod},
+		{Spin(1, 0, 1), geoCone(0.8, 1)},
+		{Spin(4, 0, 1, 2), geoCone(0.5, 1)}, // a three-dimensional working subspace
+	} {
+		w := NewWilson(c.s)
+		u := NewMat(w.K(), w.K())
+		if _, err := w.Loop(c.loop, 64, u); err != nil {
+			t.Fatal(err)
+		}
+		if a := testing.AllocsPerRun(5, func() { w.Loop(c.loop, 256, u) }); a != 0 {
+			t.Errorf("%s: %g allocations per Wilson.Loop", c.s.Name, a)
+		}
+	}
+}
+
+func TestGapClosing(t *testing.T) {
+	// A spin-½ whose field (B_x, B_z) circles a circle through B = 0 at
+	// s = ½: the two levels cross there (Berry 1984, the degeneracy).
+	through := func(r float64) Loop {
+		return func(s float64, p Point) {
+			bx, bz := r*math.Sin(2*math.Pi*s), 1+r*math.Cos(2*math.Pi*s)
+			b := math.Hypot(bx, bz)
+			SpinPoint(p, geoOmega*b, math.Atan2(bx, bz), 0)
+		}
+	}
+	w := NewWilson(Spin(1, 0))
+	u := NewMat(1, 1)
+	_, err := w.Loop(through(1), 64, u)
+	var ge *GapError
+	if !errors.As(err, &ge) {
+		t.Fatalf("loop through the degeneracy: error %v, want *GapError", err)
+	}
+	if ge.S != 0.5 || ge.Gap > 1e-9*geoOmega || !math.IsNaN(ge.V) {
+		t.Errorf("GapError %+v, want gap ≈ 0 at s = 0.5", ge)
+	}
+	if !strings.Contains(err.Error(), "s = 0.5") {
+		t.Errorf("message does not say where: %v", err)
+	}
+	// Passing at distance 0.002 ω: fine by default, an error with a
+	// tolerance of 0.01 ω that reports the smallest gap and where.
+	g, err := w.Loop(through(0.998), 64, u)
+	if err != nil {
+		t.Fatalf("near miss: %v", err)
+	}
+	if math.Abs(g.Min-0.002*geoOmega) > 1e-9*geoOmega || g.At != 0.5 {
+		t.Errorf("near miss gap %+v, want 0.002 ω at s = 0.5", g)
+	}
+	w.GapTol = 0.01 * geoOmega
+	_, err = w.Loop(through(0.998), 64, u)
+	if !errors.As(err, &ge) || math.Abs(ge.Gap-0.002*geoOmega) > 1e-9*geoOmega || ge.Tol != 0.01*geoOmega {
+		t.Errorf("near miss with tolerance: %v", err)
+	}
+	// Tripod with every drive off half-way: the dark pair meets the bright
+	// levels (gap Ω/2 → 0).
+	off := func(s float64, p Point) {
+		geoSmoothTripod(s, p)
+		c := complex(math.Abs(math.Cos(math.Pi*s)), 0)
+		for i := range p.Drive {
+			p.Drive[i] *= c
+		}
+	}
+	_, err = NewWilson(Tripod()).Loop(off, 64, NewMat(2, 2))
+	if !errors.As(err, &ge) || ge.S != 0.5 {
+		t.Errorf("tripod with drives off mid-loop: %v", err)
+	}
+}
+
+func TestNoWorkingSubspace(t *testing.T) {
+	cases := []struct {
+		name  string
+		s     *Scheme
+		loop  Loop
+		match string
+	}{
+		{"drives off at the base", Tripod(), func(s float64, p Point) {
+			TripodPoint(p, geoOmega*math.Sin(math.Pi*s), 0.5, 2*math.Pi*s)
+		}, "4-fold degenerate"},
+		{"Λ has one dark state", Lambda(), func(s float64, p Point) {
+			LambdaPoint(p, geoOmega, 1, 2*math.Pi*s)
+		}, "same weight"},
+		{"spin-½ across the equator", Spin(1, 0), geoCone(math.Pi/2, 1), "same weight"},
+		{"spin-1 m=+1 far from the pole", Spin(2, 0), geoCone(1.8, 1), "keep only"},
+	}
+	for _, c := range cases {
+		_, err := NewWilson(c.s).Loop(c.loop, 16, NewMat(len(c.s.Computational), len(c.s.Computational)))
+		if !errors.Is(err, ErrNoSubspace) || !strings.Contains(err.Error(), c.match) {
+			t.Errorf("%s: error %v, want ErrNoSubspace containing %q", c.name, err, c.match)
+		}
+	}
+}
+
+func TestLoopErrors(t *testing.T) {
+	w := NewWilson(Tripod())
+	u := NewMat(2, 2)
+	open := func(s float64, p Point) { TripodPoint(p, geoOmega, 0.5*s, 0) }
+	if _, err := w.Loop(open, 16, u); !errors.Is(err, ErrOpenLoop) {
+		t.Errorf("open loop: %v", err)
+	}
+	nan := func(s float64, p Point) {
+		TripodPoint(p, geoOmega, 0, 0)
+		if s == 0.5 {
+			p.Drive[1] = complex(math.NaN(), 0)
+		}
+	}
+	if _, err := w.Loop(nan, 16, u); err == nil || !strings.Contains(err.Error(), "s = 0.5") || !strings.Contains(err.Error(), `"p1"`) {
+		t.Errorf("NaN drive: %v", err)
+	}
+	bad := Tripod()
+	bad.Channels[0].Upper = 9
+	if _, err := NewWilson(bad).Loop(open, 16, u); err == nil || !strings.Contains(err.Error(), "invalid level scheme") {
+		t.Errorf("invalid scheme: %v", err)
+	}
+	if _, err := NewWilson(bad).Adaptive(open, AdaptiveOptions{}); err == nil {
+		t.Error("invalid scheme accepted by Adaptive")
+	}
+	if _, err := w.Adaptive(geoSmoothTripod, AdaptiveOptions{Points: 4}); err == nil {
+		t.Error("Points = 4 accepted")
+	}
+	func() {
+		defer func() {
+			if recover() == nil {
+				t.Error("3×3 destination accepted")
+			}
+		}()
+		w.Loop(geoSmoothTripod, 16, NewMat(3, 3))
+	}()
+}
+
+func TestSamplingErrorAndRefinement(t *testing.T) {
+	// Five turns around a wide cone with 8 points: neighbouring samples are
+	// 225° apart in azimuth, far more than the subspace may turn.
+	th := 1.0
+	loop := geoCone(th, 5)
+	w := NewWilson(Spin(1, 0))
+	_, err := w.Loop(loop, 8, NewMat(1, 1))
+	var se *SamplingError
+	if !errors.As(err, &se) || se.Overlap > math.Sqrt(0.5) {
+		t.Fatalf("undersampled loop: %v", err)
+	}
+	// Adaptive refines until the samples follow the subspace; Berry (1984):
+	// five turns give five times the phase.
+	res, err := w.Adaptive(loop, AdaptiveOptions{Points: 8, Tol: 1e-10, Extrapolate: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := cmplx.Exp(complex(0, -5*math.Pi*(1-math.Cos(th))))
+	if d := cmplx.Abs(res.U.Data[0] - want); d > 1e-9 {
+		t.Errorf("five turns: %v, want %v", res.U.Data[0], want)
+	}
+	// Too few points allowed: the finest result comes with ErrNotConverged.
+	res, err = w.Adaptive(loop, AdaptiveOptions{Points: 64, MaxPoints: 128, Tol: 1e-12})
+	if !errors.Is(err, ErrNotConverged) || res == nil || res.Points != 128 || res.ErrorEstimate <= 1e-12 {
+		t.Errorf("MaxPoints too small: %v, %+v", err, res)
+	}
+}
