@@ -1,0 +1,165 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"math"
+	"strings"
+
+	"github.com/loopgate/loopgate/design"
+)
+
+// printOutcome prints a design or verify outcome in words.
+func printOutcome(w io.Writer, o *design.Outcome) {
+	fmt.Fprintf(w, "%s: %s\n", o.Command, o.Source)
+	if o.Title != "" {
+		fmt.Fprintf(w, "  %s\n", o.Title)
+	}
+	fmt.Fprintf(w, "target      %s\nscheme      %s", o.Target, o.Scheme)
+	if o.Method != "" {
+		fmt.Fprintf(w, " (%s)", o.Method)
+	}
+	fmt.Fprintln(w)
+	if s := o.Search; s != nil {
+		fmt.Fprintf(w, "loop        %s, %d parameters, holonomy infidelity %.2e", s.Family, s.Parameters, s.Infidelity)
+		if s.HolonomyError > 0 {
+			fmt.Fprintf(w, " (±%.1e, %d points)", s.HolonomyError, s.LoopPoints)
+		}
+		fmt.Fprintf(w, "\n            %d evaluations in %d run(s), seed %d\n", s.Evaluations, s.Restarts, o.Seed)
+		for _, f := range s.Findings {
+			fmt.Fprintf(w, "            note: %s\n", f)
+		}
+		if r := s.Robust; r != nil {
+			fmt.Fprintf(w, "robust      mean infidelity over %d error cases: %.2e nominal → %.2e robust\n", r.Members, r.NominalMean, r.RobustMean)
+		}
+	}
+	fmt.Fprintf(w, "waveform    %d samples, %s at %s\n", o.Samples, si(o.Duration, "s"), si(o.SampleRate, "S/s"))
+	printFigures(w, "ideal", o.Ideal)
+	printFigures(w, "with errors", o.WithErrors)
+	if o.Reproduced != nil {
+		verdict := "yes, bit for bit"
+		if !*o.Reproduced {
+			verdict = "NO — the file's figures differ from a fresh simulation"
+		}
+		fmt.Fprintf(w, "reproduced  %s\n", verdict)
+	}
+	if a := o.Advantage; a != nil {
+		fmt.Fprintf(w, "\nrobust region (fidelity ≥ %g), geometric vs dynamical gate:\n", a.Threshold)
+		for _, r := range a.Rows {
+			ratio := "—"
+			if r.Ratio != nil {
+				ratio = fmt.Sprintf("×%.3g", *r.Ratio)
+			}
+			fmt.Fprintf(w, "  %-22s %12s%s  vs %12s%s   %s\n", r.Axis, width(r.Geometric, r.Unit), open(r.GeometricOpen), width(r.Dynamical, r.Unit), open(r.DynamicalOpen), ratio)
+		}
+		fmt.Fprintf(w, "  dynamical gate: %s\n", a.Dynamical)
+	}
+	if len(o.Budget) > 0 {
+		fmt.Fprintln(w, "\nerror budget (infidelity):")
+		for _, b := range o.Budget {
+			fmt.Fprintf(w, "  %-22s %.2e\n", b.Term, b.Infidelity)
+		}
+	}
+	fmt.Fprintln(w, "\nchecks:")
+	for _, c := range o.Checks {
+		verdict := "pass"
+		if !c.Pass {
+			verdict = "FAIL"
+		}
+		op := "≤"
+		if c.Bound == "min" {
+			op = "≥"
+		}
+		fmt.Fprintf(w, "  %-4s %-32s %s %s %s\n", verdict, c.Name, num(c.Value, c.Unit), op, num(c.Limit, c.Unit))
+	}
+	if len(o.Files) > 0 {
+		fmt.Fprintf(w, "\nwrote %s\n", strings.Join(o.Files, ", "))
+	}
+	fmt.Fprintf(w, "\ncaution: %s\n", design.Caution)
+}
+
+func printFigures(w io.Writer, label string, f design.Figures) {
+	fmt.Fprintf(w, "%-11s fidelity %.6f, leakage %.2e", label, f.Fidelity, f.Leakage)
+	if len(f.PeakAux) > 0 {
+		peak := 0.0
+		for _, p := range f.PeakAux {
+			peak = math.Max(peak, p)
+		}
+		fmt.Fprintf(w, ", peak auxiliary population %.2e", peak)
+	}
+	if f.Adiabaticity != nil {
+		fmt.Fprintf(w, ", adiabaticity %.3g", *f.Adiabaticity)
+	}
+	fmt.Fprintln(w)
+}
+
+// printLoopCheck prints a loop check in words.
+func printLoopCheck(w io.Writer, c *design.LoopCheck) {
+	fmt.Fprintf(w, "check: %s\nscheme      %s\ntarget      %s\n", c.Source, c.Scheme, c.Target)
+	for i, s := range c.Segments {
+		fmt.Fprintf(w, "segment %d   %s", i, s.Kind)
+		if s.Points > 0 {
+			fmt.Fprintf(w, ", holonomy from %d points (error ≤ %.1e), smallest gap %.3g×Ω at s = %.3f, adiabaticity ≈ %.3g/(ΩT)",
+				s.Points, s.ErrorEstimate, s.MinGap, s.MinGapAt, s.AdiabaticityProduct)
+		}
+		if s.Area != 0 {
+			fmt.Fprintf(w, ", pulse area %.6g rad", s.Area)
+		}
+		fmt.Fprintln(w)
+		for _, f := range s.Findings {
+			fmt.Fprintf(w, "            note: %s\n", f)
+		}
+	}
+	fmt.Fprintln(w, "gate        (computational levels)")
+	for _, row := range c.Gate {
+		fmt.Fprint(w, "           ")
+		for _, v := range row {
+			fmt.Fprintf(w, " %+.6f%+.6fi", v[0], v[1])
+		}
+		fmt.Fprintln(w)
+	}
+	verdict := "pass"
+	if !c.Pass {
+		verdict = "FAIL"
+	}
+	fmt.Fprintf(w, "fidelity    %.8f (≥ %g: %s), leakage %.2e\n", c.Fidelity, c.MinFidelity, verdict, c.Leakage)
+}
+
+func open(b bool) string {
+	if b {
+		return "+"
+	}
+	return " "
+}
+
+func width(v float64, unit string) string {
+	if unit == "" {
+		return fmt.Sprintf("%.3g %%", 100*v)
+	}
+	return si(v, unit)
+}
+
+func num(v float64, unit string) string {
+	if unit == "" {
+		return fmt.Sprintf("%.6g", v)
+	}
+	return si(v, unit)
+}
+
+// si formats v with an SI prefix.
+func si(v float64, unit string) string {
+	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
+		return fmt.Sprintf("%g %s", v, unit)
+	}
+	prefixes := []struct {
+		f float64
+		p string
+	}{{1e12, "T"}, {1e9, "G"}, {1e6, "M"}, {1e3, "k"}, {1, ""}, {1e-3, "m"}, {1e-6, "µ"}, {1e-9, "n"}, {1e-12, "p"}}
+	a := math.Abs(v)
+	for _, p := range prefixes {
+		if a >= p.f*0.9995 {
+			return fmt.Sprintf("%.4g %s%s", v/p.f, p.p, unit)
+		}
+	}
+	return fmt.Sprintf("%.3g %s", v, unit)
+}

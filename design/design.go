@@ -1,0 +1,409 @@
+package design
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"path/filepath"
+
+	"github.com/loopgate/loopgate/holonomy"
+	"github.com/loopgate/loopgate/optimize"
+	"github.com/loopgate/loopgate/waveform"
+)
+
+// Version is the loopgate version recorded in every file it writes.
+const Version = "0.1.0"
+
+// Output file names written by Design into the output folder.
+const (
+	WaveformFile = "waveform.json"
+	CSVFile      = "waveform.csv"
+	NPYFile      = "waveform.npy"
+	LoopFile     = "loop.json"
+	ReportFile   = "report.html"
+)
+
+// loopFilePoints is the number of points per adiabatic segment sampled
+// into the loop file.
+const loopFilePoints = 512
+
+// Options controls Design.
+type Options struct {
+	// OutDir is the output folder; it is created when missing.
+	OutDir string
+	// Overwrite allows replacing existing output files.
+	Overwrite bool
+	// Seed, if not nil, replaces the spec's search seed.
+	Seed *uint64
+	// NoReport skips the HTML report.
+	NoReport bool
+	// NoSweeps skips the robustness sweeps, the map and the comparison
+	// with the dynamical gate (the error budget is still computed).
+	NoSweeps bool
+	// Progress, if not nil, receives progress bars (a terminal).
+	Progress io.Writer
+	// Log, if not nil, receives one line per pipeline stage.
+	Log io.Writer
+}
+
+// Design runs the whole pipeline on spec: loop search, timing and
+// sampling, verification with and without the spec's error model, error
+// budget, robustness analysis, and the output files. It checks that the
+// outputs may be written before any work starts, and writes every file
+// atomically. The returned Outcome is non-nil whenever the work finished;
+// a failed check gives a *ChecksFailedError together with the Outcome.
+func Design(ctx context.Context, spec *Spec, opt Options) (*Outcome, error) {
+	if spec == nil || spec.Scheme == nil || spec.Target.U == nil {
+		return nil, &InputError{Err: errors.New("design: empty spec")}
+	}
+	seed := spec.Search.Seed
+	if opt.Seed != nil {
+		seed = *opt.Seed
+	}
+	names := []string{WaveformFile, CSVFile, NPYFile, LoopFile}
+	if !opt.NoReport {
+		names = append(names, ReportFile)
+	}
+	paths := make([]string, len(names))
+	for i, n := range names {
+		paths[i] = filepath.Join(opt.OutDir, n)
+	}
+	if err := PrepareOutputDir(opt.OutDir); err != nil {
+		return nil, &OutputError{Err: err}
+	}
+	if err := CheckOutputs(paths, opt.Overwrite); err != nil {
+		return nil, &OutputError{Err: err}
+	}
+
+	logf(opt.Log, "searching for a loop (%s, %s, seed %d)", spec.Method, spec.Search.Family, seed)
+	sol, err := solve(ctx, spec, seed)
+	if err != nil {
+		return nil, err
+	}
+	logf(opt.Log, "holonomy infidelity %.2e after %d evaluations", sol.summary.Infidelity, sol.summary.Evaluations)
+
+	hw := hardwareOf(spec)
+	w, err := waveform.Build(sol.plan, hw)
+	if err != nil {
+		var le *waveform.LimitError
+		if errors.As(err, &le) {
+			return nil, &InfeasibleError{Err: fmt.Errorf("spec %s: %w", spec.File, err)}
+		}
+		return nil, fmt.Errorf("spec %s: timing and sampling: %w", spec.File, err)
+	}
+	logf(opt.Log, "sampled %d samples (%.4g s) at %s", w.Len(), w.Duration(), FormatQuantity(hw.SampleRate, SampleRate))
+
+	a, err := analyse(ctx, w, errorModelOf(spec), sweepsOf(spec), !opt.NoSweeps, opt.Progress, opt.Log)
+	if err != nil {
+		return nil, err
+	}
+
+	file := &waveform.File{
+		ToolVersion:  Version,
+		SpecSHA256:   spec.Hash(),
+		Seed:         seed,
+		Spec:         string(spec.Source),
+		Waveform:     w,
+		Verification: a.ideal,
+	}
+	lf, err := waveform.NewLoopFile(sol.plan, sol.family, sol.params, loopFilePoints)
+	if err != nil {
+		return nil, fmt.Errorf("design: loop file: %w", err)
+	}
+	lf.ToolVersion, lf.SpecSHA256, lf.Seed = Version, spec.Hash(), seed
+
+	out := newOutcome("design", spec.File, spec.Title, spec.Target.Label, w, a)
+	out.Method = spec.Method.String()
+	out.Seed = seed
+	out.SpecHash = spec.Hash()
+	out.Search = &sol.summary
+
+	writers := []func(io.Writer) error{
+		file.WriteJSON,
+		func(wr io.Writer) error { return waveform.WriteCSV(wr, w) },
+		func(wr io.Writer) error { return waveform.WriteNPY(wr, w) },
+		lf.WriteJSON,
+	}
+	if !opt.NoReport {
+		data := reportData(out, w, sol.plan, a, spec.Preset)
+		writers = append(writers, func(wr io.Writer) error { return writeReport(wr, data) })
+	}
+	for i, write := range writers {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		if err := WriteAtomic(paths[i], opt.Overwrite, write); err != nil {
+			return nil, &OutputError{Err: err}
+		}
+		out.Files = append(out.Files, paths[i])
+	}
+	logf(opt.Log, "wrote %d files to %s", len(out.Files), opt.OutDir)
+	return out, out.err()
+}
+
+// solution is what the search stage hands on.
+type solution struct {
+	plan    *waveform.Plan
+	family  string
+	params  []float64
+	summary SearchSummary
+}
+
+// solve runs the loop search for spec's method and builds the plan.
+func solve(ctx context.Context, spec *Spec, seed uint64) (*solution, error) {
+	sc, target := spec.Scheme, spec.Target.U
+	var ens optimize.Ensemble
+	if spec.Search.Robust.Enabled() {
+		det := 2 * math.Pi * spec.Search.Robust.Detuning
+		ens = robustEnsemble(spec, spec.Search.Robust.Amplitude, det)
+	}
+	switch spec.Method {
+	case Nonadiabatic:
+		s := &optimize.LambdaSearch{
+			Scheme:           sc,
+			Target:           target,
+			Form:             optimize.SingleLoop,
+			Restarts:         spec.Search.Restarts,
+			Seed:             seed,
+			TargetInfidelity: spec.Search.TargetInfidelity,
+			MaxEvaluations:   spec.Search.Evaluations,
+			FromClosedForm:   true,
+			Ensemble:         ens,
+		}
+		res, err := s.Run(ctx)
+		if err != nil {
+			return nil, searchError(spec, err)
+		}
+		lc, err := optimize.NewLambdaCoupling(sc)
+		if err != nil {
+			return nil, &InfeasibleError{Err: fmt.Errorf("spec %s: scheme: %w", spec.File, err)}
+		}
+		plan := &waveform.Plan{Scheme: sc, Target: target}
+		for _, g := range res.Segments {
+			g := g
+			plan.Segments = append(plan.Segments, waveform.Segment{
+				Kind:  waveform.Cyclic,
+				Area:  g.Area,
+				Shape: func(_ float64, p holonomy.Point) { lc.Point(g, p) },
+			})
+		}
+		sum := SearchSummary{
+			Family:      "lambda " + res.Form.String(),
+			Parameters:  len(res.Params),
+			Infidelity:  res.Infidelity,
+			Evaluations: res.Evaluations,
+			Restarts:    res.Restarts,
+		}
+		sum.Robust = robustSummary(res.Robust)
+		return &solution{plan: plan, family: sum.Family, params: res.Params, summary: sum}, nil
+
+	default:
+		var sp *optimize.Sphere
+		var err error
+		if isSpin(spec.Preset) {
+			sp, err = optimize.NewFieldSphere(sc)
+		} else {
+			sp, err = optimize.NewDriveSphere(sc, false)
+		}
+		if err != nil {
+			return nil, &InfeasibleError{Err: fmt.Errorf("spec %s: scheme: %w", spec.File, err)}
+		}
+		var shape optimize.Shape
+		family := spec.Search.Family.String()
+		switch spec.Search.Family {
+		case Polygon:
+			shape = optimize.NewPolygon(sp, spec.Search.Vertices)
+		default:
+			shape = optimize.NewFourier(sp, spec.Search.Harmonics)
+		}
+		s := &optimize.Search{
+			Scheme:           sc,
+			Target:           target,
+			Shape:            shape,
+			Restarts:         spec.Search.Restarts,
+			Seed:             seed,
+			TargetInfidelity: spec.Search.TargetInfidelity,
+			MaxEvaluations:   spec.Search.Evaluations,
+			Points:           spec.Search.LoopPoints,
+			Ensemble:         ens,
+		}
+		res, err := s.Run(ctx)
+		if err != nil {
+			return nil, searchError(spec, err)
+		}
+		plan := &waveform.Plan{
+			Scheme:   sc,
+			Target:   target,
+			Segments: []waveform.Segment{{Kind: waveform.Adiabatic, Shape: res.Loop}},
+		}
+		sum := SearchSummary{
+			Family:      family,
+			Parameters:  len(res.Params),
+			Infidelity:  res.Infidelity,
+			Evaluations: res.Evaluations,
+			Restarts:    res.Restarts,
+			LoopLength:  res.Length,
+		}
+		if res.Check != nil {
+			sum.HolonomyError = res.Check.ErrorEstimate
+			sum.LoopPoints = res.Check.Points
+			sum.MinGap = res.Check.Gap.Min / (2 * math.Pi)
+			for _, f := range res.Check.Findings {
+				sum.Findings = append(sum.Findings, f.Message)
+			}
+		}
+		sum.Robust = robustSummary(res.Robust)
+		return &solution{plan: plan, family: family, params: res.Params, summary: sum}, nil
+	}
+}
+
+// searchError classifies an error from the search stage.
+func searchError(spec *Spec, err error) error {
+	var ue *optimize.UnreachableError
+	switch {
+	case errors.Is(err, context.Canceled), errors.Is(err, context.DeadlineExceeded):
+		return err
+	case errors.As(err, &ue), errors.Is(err, optimize.ErrNotConverged):
+		return &InfeasibleError{Err: fmt.Errorf("spec %s: target %s: %w", spec.File, spec.Target.Label, err)}
+	}
+	return &InfeasibleError{Err: fmt.Errorf("spec %s: loop search: %w", spec.File, err)}
+}
+
+// robustEnsemble is the 3×3 grid of amplitude errors ±amp and detuning
+// errors ±det (rad/s) on the levels the spec's robust detuning kind moves.
+func robustEnsemble(spec *Spec, amp, det float64) optimize.Ensemble {
+	sc := spec.Scheme
+	levels := spec.Excited
+	if spec.Search.Robust.DetuningKind == TwoPhoton && len(sc.Computational) > 1 {
+		levels = sc.Computational[1:2]
+	}
+	var ens optimize.Ensemble
+	for _, e := range []float64{-amp, 0, amp} {
+		for _, d := range []float64{-det, 0, det} {
+			if (amp == 0 && e != 0) || (det == 0 && d != 0) {
+				continue
+			}
+			p := optimize.Perturbation{Amplitude: make([]float64, len(sc.Channels)), Detuning: make([]float64, len(sc.Levels))}
+			for c := range p.Amplitude {
+				p.Amplitude[c] = e
+			}
+			for _, k := range levels {
+				p.Detuning[k] = d
+			}
+			ens = append(ens, p)
+		}
+	}
+	return ens
+}
+
+func robustSummary(r *optimize.RobustReport) *RobustSummary {
+	if r == nil {
+		return nil
+	}
+	return &RobustSummary{
+		Members:      len(r.Members),
+		NominalMean:  r.NominalMean,
+		RobustMean:   r.RobustMean,
+		NominalWorst: r.NominalWorst,
+		RobustWorst:  r.RobustWorst,
+		Improvement:  finiteOrZero(r.Improvement()),
+		Insensitive:  r.Insensitive,
+		Kept:         r.Kept,
+	}
+}
+
+
+// hardwareOf converts the spec's hardware section for package waveform.
+// The waveform stage has one slew limit for all channels: the smallest.
+func hardwareOf(spec *Spec) waveform.Hardware {
+	h := spec.Hardware
+	slew := math.Inf(1)
+	for _, s := range h.MaxSlew {
+		slew = math.Min(slew, s)
+	}
+	return waveform.Hardware{
+		MaxRabi:     append([]float64(nil), h.MaxRabi...),
+		MaxSlew:     slew,
+		SampleRate:  h.SampleRate,
+		Granularity: h.Granularity,
+		MaxSamples:  h.MaxSamples,
+		DACBits:     h.DACBits,
+		FullScale:   append([]float64(nil), h.FullScale...),
+		MinDuration: h.MinDuration,
+		MaxDuration: h.MaxDuration,
+	}
+}
+
+// errorModelOf converts the spec's verification errors. The decay rate is
+// the largest Level.Decay among the excited levels.
+func errorModelOf(spec *Spec) waveform.ErrorModel {
+	e := spec.Errors
+	m := waveform.ErrorModel{
+		OnePhotonDetuning: e.OnePhoton,
+		TwoPhotonDetuning: e.TwoPhoton,
+		Dephasing:         e.Dephasing,
+		Unquantized:       !e.Quantise,
+	}
+	if e.Filter != NoFilter {
+		m.RiseTime = e.RiseTime
+	}
+	common := true
+	for _, a := range e.Amplitude {
+		if a != e.Amplitude[0] {
+			common = false
+		}
+	}
+	if len(e.Amplitude) > 0 {
+		if common {
+			m.AmplitudeError = e.Amplitude[0]
+		} else {
+			m.ChannelErrors = append([]float64(nil), e.Amplitude...)
+		}
+	}
+	for _, k := range spec.Excited {
+		m.Decay = math.Max(m.Decay, spec.Scheme.Levels[k].Decay)
+	}
+	return m
+}
+
+// sweepPlan lists the robustness analysis to run.
+type sweepPlan struct {
+	amplitude, detuning waveform.Range
+	oneExtra            *waveform.Range // a one-photon sweep, geometric only
+	mapX, mapY          waveform.Range
+}
+
+func sweepsOf(spec *Spec) sweepPlan {
+	s := spec.Sweeps
+	axis := waveform.TwoPhotonAxis
+	if s.DetuningKind == OnePhoton {
+		axis = waveform.OnePhotonAxis
+	}
+	p := sweepPlan{
+		amplitude: waveform.Range{Axis: waveform.AmplitudeAxis, Min: -s.Amplitude.Span, Max: s.Amplitude.Span, Points: s.Amplitude.Points},
+		detuning:  waveform.Range{Axis: waveform.TwoPhotonAxis, Min: -s.Detuning.Span, Max: s.Detuning.Span, Points: s.Detuning.Points},
+		mapX:      waveform.Range{Axis: waveform.AmplitudeAxis, Min: -s.Amplitude.Span, Max: s.Amplitude.Span, Points: s.MapAmplitude},
+		mapY:      waveform.Range{Axis: axis, Min: -s.Detuning.Span, Max: s.Detuning.Span, Points: s.MapDetuning},
+	}
+	if axis == waveform.OnePhotonAxis {
+		r := p.detuning
+		r.Axis = waveform.OnePhotonAxis
+		p.oneExtra = &r
+	}
+	return p
+}
+
+func logf(w io.Writer, format string, args ...any) {
+	if w != nil {
+		fmt.Fprintf(w, "loopgate: "+format+"\n", args...)
+	}
+}
+
+func finiteOrZero(x float64) float64 {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return 0
+	}
+	return x
+}

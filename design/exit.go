@@ -1,0 +1,71 @@
+package design
+
+import (
+	"context"
+	"errors"
+	"fmt"
+)
+
+// Exit codes of the loopgate command, documented in the README.
+const (
+	ExitOK          = 0   // success; every check passed
+	ExitInternal    = 1   // unexpected failure (a bug; please report it)
+	ExitBadInput    = 2   // bad flags, spec, loop file or waveform file
+	ExitChecks      = 3   // the work finished but a fidelity or hardware check failed
+	ExitInfeasible  = 4   // the target cannot be reached, or the hardware limits make it impossible
+	ExitOutput      = 5   // an output file exists (use --overwrite) or cannot be written
+	ExitInterrupted = 130 // interrupted (Ctrl-C); no partial files were left
+)
+
+// InputError reports bad input: a spec, loop file, waveform file or flag.
+type InputError struct{ Err error }
+
+func (e *InputError) Error() string { return e.Err.Error() }
+func (e *InputError) Unwrap() error { return e.Err }
+
+// InfeasibleError reports a target or hardware limit that cannot be met.
+type InfeasibleError struct{ Err error }
+
+func (e *InfeasibleError) Error() string { return e.Err.Error() }
+func (e *InfeasibleError) Unwrap() error { return e.Err }
+
+// OutputError reports an output that exists or cannot be written.
+type OutputError struct{ Err error }
+
+func (e *OutputError) Error() string { return e.Err.Error() }
+func (e *OutputError) Unwrap() error { return e.Err }
+
+// ChecksFailedError reports that the work completed but at least one check
+// failed; the outputs that were written carry the failed checks.
+type ChecksFailedError struct {
+	Failed []string // names of the failed checks
+}
+
+func (e *ChecksFailedError) Error() string {
+	return fmt.Sprintf("%d check(s) failed: %v", len(e.Failed), e.Failed)
+}
+
+// ExitCode maps an error returned by this package to the command's exit code.
+func ExitCode(err error) int {
+	var (
+		in  *InputError
+		inf *InfeasibleError
+		out *OutputError
+		chk *ChecksFailedError
+	)
+	switch {
+	case err == nil:
+		return ExitOK
+	case errors.Is(err, context.Canceled):
+		return ExitInterrupted
+	case errors.As(err, &in):
+		return ExitBadInput
+	case errors.As(err, &inf):
+		return ExitInfeasible
+	case errors.As(err, &out):
+		return ExitOutput
+	case errors.As(err, &chk):
+		return ExitChecks
+	}
+	return ExitInternal
+}

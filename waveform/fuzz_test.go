@@ -1,0 +1,122 @@
+package waveform
+
+import (
+	"bytes"
+	"errors"
+	"math"
+	"strings"
+	"testing"
+)
+
+// smallWaveformFile returns a valid waveform file of a few samples: a Λ
+// gate at 100 MS/s.
+func smallWaveformFile(tb testing.TB, m ErrorModel) []byte {
+	hw := testHardware(2, 10e6)
+	hw.SampleRate = 1e8
+	hw.Granularity = 4
+	return encode(tb, testFile(tb, lambdaPlan(math.Pi/4, 0.3, nDotSigma(math.Pi/4, 0.3)), hw, m))
+}
+
+func smallLoopFile(tb testing.TB) []byte {
+	lf, err := NewLoopFile(tripodPlan(math.Pi/4, 0.05), "slice", []float64{math.Pi / 4}, 6)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	var b bytes.Buffer
+	if err := lf.WriteJSON(&b); err != nil {
+		tb.Fatal(err)
+	}
+	return b.Bytes()
+}
+
+// seeds adds a document, truncations of it and a few edits.
+func seeds(f *testing.F, doc []byte) {
+	f.Add(doc)
+	for _, n := range []int{0, 1, len(doc) / 3, len(doc) / 2, len(doc) - 2} {
+		f.Add(doc[:n])
+	}
+	s := string(doc)
+	for _, r := range [][2]string{
+		{`"version": 1`, `"version": 2`},
+		{`"samples": `, `"samples": 1e300, "x": `},
+		{`: 0,`, `: -1e-320,`},
+		{`"g1"`, `"e"`},
+		{`"adiabatic"`, `"cyclic"`},
+		{`[`, `[[`},
+		{`"s": 0,`, `"s": 0.5,`},
+	} {
+		f.Add([]byte(strings.Replace(s, r[0], r[1], 1)))
+	}
+	f.Add([]byte("null"))
+	f.Add([]byte(`{"format":"loopgate-waveform","version":1}`))
+	f.Add([]byte("\xef\xbb\xbf{}"))
+}
+
+// FuzzReadWaveform: any input gives a *FileError or a file that writes
+// back and re-reads to the same bytes; small files also verify without
+// panicking.
+func FuzzReadWaveform(f *testing.F) {
+	seeds(f, smallWaveformFile(f, ErrorModel{}))
+	seeds(f, smallWaveformFile(f, ErrorModel{AmplitudeError: 0.1, ChannelErrors: []float64{0.01, 0.02}, Decay: 1e5, Dephasing: 1e4, RiseTime: 3e-9}))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		file, err := ReadWaveform(bytes.NewReader(data), "fuzz.json")
+		if err != nil {
+			var fe *FileError
+			if !errors.As(err, &fe) {
+				t.Fatalf("error is not a *FileError: %v", err)
+			}
+			return
+		}
+		var b1, b2 bytes.Buffer
+		if err := file.WriteJSON(&b1); err != nil {
+			t.Fatalf("a file that reads does not write: %v", err)
+		}
+		again, err := ReadWaveform(bytes.NewReader(b1.Bytes()), "again.json")
+		if err != nil {
+			t.Fatalf("a written file does not read: %v", err)
+		}
+		if err := again.WriteJSON(&b2); err != nil || !bytes.Equal(b1.Bytes(), b2.Bytes()) {
+			t.Fatalf("write → read → write is not stable (%v)", err)
+		}
+		if file.Waveform.Len() <= 64 {
+			Verify(file.Waveform, file.Verification.Model) // must not panic
+		}
+	})
+}
+
+// FuzzReadLoop: any input gives a *FileError or a loop file that writes
+// back and re-reads to the same bytes and whose shapes can be evaluated.
+func FuzzReadLoop(f *testing.F) {
+	seeds(f, smallLoopFile(f))
+	lc, _ := NewLoopFile(lambdaPlan(math.Pi/4, 0, hadamard()), "lambda", nil, 8)
+	var b bytes.Buffer
+	lc.WriteJSON(&b)
+	seeds(f, b.Bytes())
+	f.Fuzz(func(t *testing.T, data []byte) {
+		l, err := ReadLoop(bytes.NewReader(data), "fuzz-loop.json")
+		if err != nil {
+			var fe *FileError
+			if !errors.As(err, &fe) {
+				t.Fatalf("error is not a *FileError: %v", err)
+			}
+			return
+		}
+		var b1, b2 bytes.Buffer
+		if err := l.WriteJSON(&b1); err != nil {
+			t.Fatalf("a loop file that reads does not write: %v", err)
+		}
+		again, err := ReadLoop(bytes.NewReader(b1.Bytes()), "again.json")
+		if err != nil {
+			t.Fatalf("a written loop file does not read: %v", err)
+		}
+		if err := again.WriteJSON(&b2); err != nil || !bytes.Equal(b1.Bytes(), b2.Bytes()) {
+			t.Fatalf("write → read → write is not stable (%v)", err)
+		}
+		for i := range l.Segments {
+			pt := l.Scheme.NewPoint()
+			for _, s := range []float64{0, 0.3, 0.999, 1} {
+				l.Shape(i)(s, pt)
+			}
+		}
+	})
+}
