@@ -24,9 +24,10 @@ type Surface func(u, v float64, p Point)
 // spectrum is checked at every point evaluated (*GapError).
 //
 // Curvature uses the sum-over-states formula of Berry, Proc. R. Soc. A 392,
-// 45 (1984), eq. (10), summed over the working subspace S, which gives the
-// trace of the non-Abelian curvature (Wilczek and Zee, Phys. Rev. Lett. 52,
-// 2111 (1984)) and, for one state, the Abelian one:
+// 45 (1984), eq. (10) (equation number from memory), summed over the
+// working subspace S, which gives the trace of the non-Abelian curvature
+// (Wilczek and Zee, Phys. Rev. Lett. 52, 2111 (1984)) and, for one state,
+// the Abelian one:
 //
 //	Tr F_uv = −2 Im Σ_{a∈S} Σ_{m∉S} ⟨a|∂_u H|m⟩⟨m|∂_v H|a⟩ / (E_m − E_a)²,
 //
@@ -262,7 +263,7 @@ func (f *Flux) Integral(surf Surface, order int) (float64, error) {
 // gaussLegendre returns the nodes and weights of n-point Gauss–Legendre
 // quadrature on [0, 1], found by Newton's method on the three-term
 // recurrence of the Legendre polynomials (Abramowitz and Stegun, Handbook of
-// Mathematical Functions, 1964, 25.4.29).
+// Mathematical Functions, 1964, 25.4.29; from memory).
 func gaussLegendre(n int) (x, w []float64) {
 	x, w = make([]float64, n), make([]float64, n)
 	for i := 0; i < (n+1)/2; i++ {
@@ -346,7 +347,9 @@ func (f *Flux) lattice(surf Surface, nu, nv int, periodicV bool) (float64, error
 			}
 		}
 	}
-	link := func(to, from []complex128, where string) (complex128, error) {
+	// link returns det(to† from)/|det(to† from)| and the smallest squared
+	// singular value of the overlap.
+	link := func(to, from []complex128) (complex128, float64) {
 		for a := 0; a < k; a++ {
 			for b := 0; b < k; b++ {
 				var s complex128
@@ -356,12 +359,12 @@ func (f *Flux) lattice(surf Surface, nu, nv int, periodicV bool) (float64, error
 				f.ov[a*k+b] = s
 			}
 		}
-		if s2 := tr.pol.minSV2(f.ov, k); s2 < minOverlap2 {
-			return 0, fmt.Errorf("holonomy: lattice flux: the working subspace turns by %.0f° across the link %s (more than 45°): use a finer grid, or an eigenvalue crosses the working subspace there",
-				math.Acos(math.Sqrt(s2))*180/math.Pi, where)
-		}
+		s2 := tr.pol.minSV2(f.ov, k)
 		d := detSmall(f.ov, f.lu, k)
-		return d / complex(math.Hypot(real(d), imag(d)), 0), nil
+		if d == 0 {
+			return 0, 0
+		}
+		return d / complex(math.Sqrt(sqmag(d)), 0), s2
 	}
 	vec := func(row []complex128, j int) []complex128 {
 		if periodicV {
@@ -392,25 +395,18 @@ func (f *Flux) lattice(surf Surface, nu, nv int, periodicV bool) (float64, error
 				return fmt.Sprintf("near (u, v) = (%.4g, %.4g)", float64(i)/float64(nu), float64(j)/float64(nv))
 			}
 			c0, c1, c2, c3 := vec(prev, j), vec(cur, j), vec(cur, j+1), vec(prev, j+1)
-			l01, err := link(c1, c0, where())
-			if err != nil {
-				return 0, err
+			l01, s01 := link(c1, c0) // 0 → 1
+			l12, s12 := link(c2, c1) // 1 → 2
+			l23, s23 := link(c3, c2) // 2 → 3
+			l30, s30 := link(c0, c3) // 3 → 0
+			if s2 := min(s01, s12, s23, s30); s2 < minOverlap2 {
+				return 0, fmt.Errorf("holonomy: lattice flux: the working subspace turns by %.0f° across a link %s (more than 45°): use a finer grid, or an eigenvalue crosses the working subspace there",
+					math.Acos(math.Sqrt(s2))*180/math.Pi, where())
 			}
-			l12, err := link(c2, c1, where())
-			if err != nil {
-				return 0, err
-			}
-			l32, err := link(c3, c2, where()) // det(V3†V2): 2 → 3
-			if err != nil {
-				return 0, err
-			}
-			l03, err := link(c0, c3, where()) // 3 → 0
-			if err != nil {
-				return 0, err
-			}
-			ph := math.Atan2(imag(l01*l12*l32*l03), real(l01*l12*l32*l03))
+			w := l01 * l12 * l23 * l30
+			ph := math.Atan2(imag(w), real(w))
 			if math.Abs(ph) > math.Pi/2 {
-				return 0, fmt.Errorf("holonomy: lattice flux: plaquette %s carries a field strength of %.3g rad (more than π/2): use a finer grid", where(), ph)
+				return 0, fmt.Errorf("holonomy: lattice flux: the plaquette %s carries a field strength of %.3g rad (more than π/2): use a finer grid", where(), ph)
 			}
 			sum += ph
 		}

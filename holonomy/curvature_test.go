@@ -13,7 +13,7 @@ import (
 func geoSphere(u, v float64, p Point) { SpinPoint(p, geoOmega, math.Pi*u, 2*math.Pi*v) }
 
 func TestBerryCurvatureSphere(t *testing.T) {
-	// Berry, Proc. R. Soc. A 392, 45 (1984), eqs. (22)–(24): the curvature
+	// Berry, Proc. R. Soc. A 392, 45 (1984), the spin example: the curvature
 	// of state m of a spin in the field direction n is −m times the solid
 	// angle element, F_θφ = −m sinθ, so its flux through any sphere around
 	// the degeneracy B = 0 is −4πm: −2π for spin-½ aligned, −4π for spin-1
@@ -88,7 +88,7 @@ func geoLambdaDisk(c complex128, r float64) (*Scheme, Surface, Loop) {
 }
 
 func TestStokesSmallLoops(t *testing.T) {
-	// Stokes' theorem for the Berry connection (Berry 1984, eq. (9)): the
+	// Stokes' theorem for the Berry connection (Berry 1984): the
 	// flux of the curvature through a surface equals the phase of its
 	// boundary loop. Independent computations: curvature from Berry's
 	// sum-over-states formula and Gauss–Legendre quadrature, phase from the

@@ -13,7 +13,7 @@ const (
 	// RealLoop: the Hamiltonian is real along the whole loop in a basis of
 	// fixed level phases. The holonomy is then a real orthogonal matrix in
 	// that basis, so one state can pick up a Berry phase of 0 or π only
-	// (common practice; Berry, Proc. R. Soc. A 392, 45 (1984), §3).
+	// (common practice; Berry, Proc. R. Soc. A 392, 45 (1984)).
 	RealLoop FindingKind = iota + 1
 	// NoArea: the loop encloses no area in control space (the controls do
 	// not change, change along one line only, or the path retraces itself),
@@ -42,7 +42,9 @@ func (k FindingKind) String() string {
 
 // Finding is one diagnostic about a loop, with a message in plain words.
 type Finding struct {
-	Kind    FindingKind
+	// Kind classifies the finding.
+	Kind FindingKind
+	// Message explains it in plain words, for people.
 	Message string
 }
 

@@ -17,7 +17,7 @@ func geoKinds(fs []Finding) map[FindingKind]string {
 }
 
 func TestRealLoopFinding(t *testing.T) {
-	// Common practice (Berry, Proc. R. Soc. A 392, 45 (1984), §3): along a
+	// Common practice (Berry, Proc. R. Soc. A 392, 45 (1984)): along a
 	// loop on which H stays real the holonomy is real orthogonal; one state
 	// picks up 0 or π, π exactly when the loop encircles a degeneracy
 	// (Herzberg and Longuet-Higgins, Discuss. Faraday Soc. 35, 77 (1963);
@@ -190,12 +190,17 @@ func TestNoAreaFinding(t *testing.T) {
 			}
 		}
 	}
-	// Loops that do enclose area are not reported: the sector loop, and a
-	// figure-eight whose lobes are traversed in opposite senses.
+	// Loops that do enclose area are not reported: the sector loop, a
+	// figure-eight whose lobes are traversed in opposite senses, and a thin
+	// loop that comes back 1e-6 rad beside its outward path.
 	eight := func(s float64, p Point) {
 		TripodPoint(p, geoOmega, 0.6+0.3*math.Sin(4*math.Pi*s)+0.3*math.Sin(2*math.Pi*s), 0.8*math.Sin(2*math.Pi*s))
 	}
-	for name, loop := range map[string]Loop{"sector": geoSector(th0, ph0, geoTripodDCZ), "figure-eight": eight} {
+	thin := func(s float64, p Point) { // out and back 1e-6 rad apart in φ
+		x := math.Sin(math.Pi * s)
+		TripodPoint(p, geoOmega, th0*x*x, 0.7+1e-6*math.Sin(2*math.Pi*s))
+	}
+	for name, loop := range map[string]Loop{"sector": geoSector(th0, ph0, geoTripodDCZ), "figure-eight": eight, "thin": thin} {
 		fs, err := w.Diagnose(loop, 96)
 		if err != nil {
 			t.Fatal(err)

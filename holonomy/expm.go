@@ -10,7 +10,8 @@ import (
 // "The scaling and squaring method for the matrix exponential revisited",
 // SIAM J. Matrix Anal. Appl. 26, 1179 (2005), Algorithm 2.3.
 //
-// With θ_m the bounds of Higham's Table 2.3, the degree m ∈ {3, 5, 7, 9} is
+// With θ_m the bounds of Higham's Table 2.3 (quoted from memory; the tests
+// check the accuracy they deliver), the degree m ∈ {3, 5, 7, 9} is
 // the smallest with ‖A‖₁ ≤ θ_m; otherwise A is scaled by 2^−s so that
 // ‖2^−s A‖₁ ≤ θ₁₃, the [13/13] approximant is evaluated and squared s times.
 // In exact arithmetic the result is exp(A + E) with ‖E‖ ≤ 2^−53‖A‖ (the
@@ -46,7 +47,8 @@ func Expm(dst, a *Mat) {
 }
 
 // Padé degrees and the bounds θ_m on ‖A‖₁ for which the [m/m] approximant
-// has backward error at most 2^−53 (Higham 2005, Table 2.3).
+// has backward error at most 2^−53 (Higham 2005, Table 2.3; values quoted
+// from memory, their accuracy is checked by the tests).
 var (
 	padeDegrees = [...]int{3, 5, 7, 9, 13}
 	padeTheta   = [...]float64{
@@ -56,10 +58,10 @@ var (
 		2.097847961257068e0,
 		5.371920351148152e0,
 	}
-	// padeCoef[m][j] = b_j/b_0 for the [m/m] approximant,
-	// b_j = (2m−j)! m! / ((2m)! j! (m−j)!).
-	padeCoef = func() map[int][]float64 {
-		c := make(map[int][]float64)
+	// padeCoef[m][j] = b_j = (2m−j)! m! / ((2m)! j! (m−j)!), the
+	// coefficients of the numerator p_m(x) = Σ_j b_j x^j of the [m/m]
+	// approximant (b_0 = 1; the denominator is p_m(−x)).
+	padeCoef = func() (c [14][]float64) {
 		for _, m := range padeDegrees {
 			b := make([]float64, m+1)
 			b[0] = 1
@@ -70,7 +72,7 @@ var (
 		}
 		return c
 	}()
-	pade3, pade5, pade7, pade9, pade13 = padeCoef[3], padeCoef[5], padeCoef[7], padeCoef[9], padeCoef[13]
+	pade13 = padeCoef[13]
 )
 
 // Exp sets dst = exp(a). dst may be a. Exp does not allocate.
@@ -79,17 +81,43 @@ func (x *Exponential) Exp(dst, a *Mat) {
 	if a.R != n || a.C != n || dst.R != n || dst.C != n {
 		panic(fmt.Sprintf("holonomy: Exponential.Exp: workspace %d, A %d×%d, dst %d×%d", n, a.R, a.C, dst.R, dst.C))
 	}
-	A := x.a
-	copy(A, a.Data[:n*n])
-	norm := norm1Cols(A, n)
-	if math.IsNaN(norm) || math.IsInf(norm, 0) {
+	if n == 1 {
+		// The scalar case needs no Padé approximant.
+		dst.Data[0] = complexExp(a.Data[0])
+		x.lastDegree, x.lastSquare = 0, 0
+		return
+	}
+	M, N, s, ok := x.pade(a.Data)
+	if !ok {
 		nan := complex(math.NaN(), math.NaN())
 		for i := range dst.Data {
 			dst.Data[i] = nan
 		}
 		return
 	}
-	s := 0
+	luSolve(M, N, n, n)
+	// Square s times, ping-ponging between N and a spare buffer.
+	src, tmp := N, x.t
+	for ; s > 0; s-- {
+		mulSq(tmp, src, src, n)
+		src, tmp = tmp, src
+	}
+	copy(dst.Data, src)
+}
+
+// pade prepares exp(A) ≈ (M⁻¹N)^(2^s) for the n×n matrix a (n ≥ 2) by
+// Higham's Algorithm 2.3: M = q_m(2^−s A) and N = p_m(2^−s A), the
+// denominator and numerator of the [m/m] Padé approximant, are returned in
+// workspace buffers (N is x.u, M is x.v). ok is false for a non-finite a.
+func (x *Exponential) pade(a []complex128) (M, N []complex128, s int, ok bool) {
+	n := x.n
+	A := x.a
+	copy(A, a[:n*n])
+	norm := norm1Cols(A, n)
+	if math.IsNaN(norm) || math.IsInf(norm, 0) {
+		return nil, nil, 0, false
+	}
+	s = 0
 	m := 13
 	for i, th := range padeTheta[:4] {
 		if norm <= th {
@@ -107,15 +135,6 @@ func (x *Exponential) Exp(dst, a *Mat) {
 	x.lastDegree, x.lastSquare = m, s
 	U, V, T := x.u, x.v, x.t
 	A2, A4, A6, A8 := x.a2, x.a4, x.a6, x.a8
-	if n == 1 {
-		// The scalar case needs no Padé approximant.
-		z := A[0]
-		dst.Data[0] = complexExp(z)
-		for ; s > 0; s-- {
-			dst.Data[0] *= dst.Data[0]
-		}
-		return
-	}
 	mulSq(A2, A, A, n)
 	switch m {
 	case 3, 5, 7, 9:
@@ -186,19 +205,12 @@ func (x *Exponential) Exp(dst, a *Mat) {
 			V[i*n+i] += complex(b[0], 0)
 		}
 	}
-	// Solve (V − U) X = (V + U): the [m/m] approximant r_m(A) = q_m(A)⁻¹p_m(A).
+	// r_m(A) = q_m(A)⁻¹p_m(A) with q_m = V − U and p_m = V + U.
 	for i := range V {
 		v, u := V[i], U[i]
 		V[i], U[i] = v-u, v+u
 	}
-	luSolve(V, U, n, n)
-	// Square s times, ping-ponging between U and T.
-	src, tmp := U, T
-	for ; s > 0; s-- {
-		mulSq(tmp, src, src, n)
-		src, tmp = tmp, src
-	}
-	copy(dst.Data, src)
+	return V, U, s, true
 }
 
 // expHermitian sets w = exp(−iB) for a Hermitian B (full storage, n×n)

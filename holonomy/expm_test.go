@@ -11,7 +11,7 @@ import (
 
 // TestPadeCoefficients checks the [m/m] Padé coefficients against the exact
 // rationals b_j/b_0 with b_j = (2m−j)! m! / ((2m)! j! (m−j)!) (Higham, SIAM
-// J. Matrix Anal. Appl. 26, 1179 (2005), eq. (2.2)), computed here in exact
+// J. Matrix Anal. Appl. 26, 1179 (2005)), computed here in exact
 // arithmetic, and the m = 13 integers b_j = (26−j)!/(j!(13−j)!) listed in
 // that paper (from memory) against the same formula.
 func TestPadeCoefficients(t *testing.T) {

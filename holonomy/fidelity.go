@@ -13,7 +13,7 @@ import (
 //	leak = 1 − Tr(M†M)/d,
 //
 // where P projects on the computational levels (Pedersen, Møller and
-// Mølmer, Phys. Lett. A 367, 47 (2007), eq. (5) and the leakage below it).
+// Mølmer, Phys. Lett. A 367, 47 (2007)).
 // F is the fidelity averaged over pure initial states of the computational
 // subspace. For a u that maps the computational subspace unitarily onto
 // itself, Tr(M†M) = d and F reduces to Nielsen's (d + |Tr M|²)/(d(d+1))

@@ -22,7 +22,7 @@ func dynEmbed(n int, comp []int, g *Mat) *Mat {
 
 // nielsenFidelity evaluates Nielsen's formula for the average fidelity of
 // the unitary channel ρ ↦ UρU† against the target V (Nielsen, Phys. Lett. A
-// 303, 249 (2002), eq. (18)):
+// 303, 249 (2002)):
 //
 //	F̄ = [Σ_j Tr(V U_j† V† 𝓔(U_j)) + d²] / (d²(d+1)),
 //
@@ -111,7 +111,7 @@ func designStates(d int) [][]complex128 {
 
 // TestGateFidelityLeakyDesign: with leakage, F = ∫dψ |⟨ψ|M|ψ⟩|² over pure
 // computational states, M = P U_target† U P (Pedersen, Møller and Mølmer,
-// Phys. Lett. A 367, 47 (2007), eq. (2)); the integral is evaluated exactly
+// Phys. Lett. A 367, 47 (2007)); the integral is evaluated exactly
 // as the average over a state 2-design. Random unitaries on 5 levels mix the
 // computational levels with the rest.
 func TestGateFidelityLeakyDesign(t *testing.T) {

@@ -53,11 +53,11 @@ import (
 // A Lindblad is a reusable workspace; its step methods do not allocate. It is
 // not safe for concurrent use.
 type Lindblad struct {
-	// Decay holds the population loss rate Γ_k of every level in 1/s
+	// Decay holds the population loss rate Γ_k ≥ 0 of every level in 1/s
 	// (nil: none). It enters as −½{Γ, ρ}.
 	Decay []float64
-	// Dephasing holds the pure dephasing rate γ_k of every level in 1/s
-	// (nil: none), collapse operator √(2γ_k)|k⟩⟨k|.
+	// Dephasing holds the pure dephasing rate γ_k ≥ 0 of every level in
+	// 1/s (nil: none), collapse operator √(2γ_k)|k⟩⟨k|.
 	Dephasing []float64
 
 	n                     int
@@ -91,8 +91,8 @@ func NewLindblad(n int, decay, dephasing []float64) *Lindblad {
 	return l
 }
 
-// rates returns Γ_k and γ_k, zero for nil fields; it panics on a length
-// mismatch.
+// rates returns Γ_k and γ_k, zero for nil fields (lengths are checked by
+// check).
 func (l *Lindblad) rates(k int) (gamma, phi float64) {
 	if l.Decay != nil {
 		gamma = l.Decay[k]
@@ -103,16 +103,26 @@ func (l *Lindblad) rates(k int) (gamma, phi float64) {
 	return gamma, phi
 }
 
+// check panics on shape mismatches and on negative or NaN rates, which the
+// callers must have rejected as input errors.
 func (l *Lindblad) check(h *Mat, what string) {
 	n := l.n
 	if h.R != n || h.C != n || (l.Decay != nil && len(l.Decay) != n) || (l.Dephasing != nil && len(l.Dephasing) != n) {
 		panic(fmt.Sprintf("holonomy: Lindblad.%s: %d levels, H %d×%d, %d decay and %d dephasing rates", what, n, h.R, h.C, len(l.Decay), len(l.Dephasing)))
 	}
+	for k := 0; k < n; k++ {
+		if g, p := l.rates(k); !(g >= 0 && p >= 0) {
+			panic(fmt.Sprintf("holonomy: Lindblad.%s: level %d has decay %g and dephasing %g; rates must be non-negative", what, k, g, p))
+		}
+	}
 }
 
-// Generator writes the n²×n² matrix of 𝓛 for the Hermitian Hamiltonian h
-// (rad/s, read in full) into dst, in the row-major vectorisation described
-// on Lindblad: (𝓛)_{(ij),(kl)} = K_ik δ_jl + δ_ik conj(K_jl) + D_ij δ_ik δ_jl.
+// Generator writes into dst the n²×n² matrix of 𝓛 for the Hermitian
+// Hamiltonian h (rad/s; upper triangle and real diagonal read), in the
+// row-major vectorisation described on Lindblad:
+//
+//	𝓛_{(ij),(kl)} = K_ik δ_jl + δ_ik conj(K_jl) + D_ij δ_ik δ_jl.
+//
 // It is meant for analysis and tests; the step methods never form it.
 func (l *Lindblad) Generator(dst, h *Mat) {
 	l.check(h, "Generator")
@@ -141,13 +151,11 @@ func (l *Lindblad) Generator(dst, h *Mat) {
 // is set so that each has ‖𝓛δt‖ ≤ 1 (see Lindblad).
 func (l *Lindblad) prepare(h *Mat, dt float64, split bool) {
 	n := l.n
-	hd := h.Data[:n*n]
+	hermitianTimesMinusI(l.k, h.Data, n, dt)
 	var dmax float64
 	for i := 0; i < n; i++ {
 		gi, pi := l.rates(i)
 		for j := 0; j < n; j++ {
-			v := hd[i*n+j]
-			l.k[i*n+j] = complex(imag(v)*dt, -real(v)*dt) // −i h dt
 			if i != j {
 				_, pj := l.rates(j)
 				x := -(pi + pj) * dt
@@ -209,8 +217,8 @@ func (l *Lindblad) apply(x []complex128) {
 	}
 }
 
-// Step sets ρ ← exp(𝓛 dt) ρ for the Hermitian Hamiltonian h (rad/s, read in
-// full) held for dt seconds. rho is n×n (any operator, not only a density
+// Step sets ρ ← exp(𝓛 dt) ρ for the Hermitian Hamiltonian h (rad/s; only
+// its upper triangle and real diagonal are read) held for dt seconds. rho is n×n (any operator, not only a density
 // matrix). Step does not allocate.
 func (l *Lindblad) Step(rho, h *Mat, dt float64) {
 	l.check(h, "Step")

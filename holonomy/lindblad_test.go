@@ -316,3 +316,25 @@ func ExampleLindblad() {
 	// Output:
 	// |ρ01| = 0.1839, 0.5/e = 0.1839
 }
+
+func TestLindbladPanics(t *testing.T) {
+	cases := map[string]func(){
+		"negative decay":  func() { NewLindblad(2, []float64{0, -1}, nil).Step(NewMat(2, 2), NewMat(2, 2), 1) },
+		"NaN dephasing":   func() { NewLindblad(2, nil, []float64{math.NaN(), 0}).Step(NewMat(2, 2), NewMat(2, 2), 1) },
+		"rate count":      func() { NewLindblad(3, []float64{1}, nil) },
+		"H shape":         func() { NewLindblad(2, nil, nil).Step(NewMat(2, 2), NewMat(3, 3), 1) },
+		"S shape":         func() { NewLindblad(2, nil, nil).StepSuper(NewMat(2, 2), NewMat(2, 2), 1) },
+		"fidelity shape":  func() { ChannelFidelity(NewMat(4, 4), 3, []int{0}, Identity(1)) },
+		"fidelity levels": func() { ChannelFidelity(NewMat(4, 4), 2, []int{2}, Identity(1)) },
+	}
+	for name, f := range cases {
+		func() {
+			defer func() {
+				if recover() == nil {
+					t.Errorf("%s: no panic", name)
+				}
+			}()
+			f()
+		}()
+	}
+}

@@ -108,24 +108,48 @@ func (p *Propagator) stepEigen(u, h *Mat, dt float64, t *Mat) {
 // the population loss rate of every level (1/s) and h is Hermitian (rad/s).
 // An amplitude on level k then decays as e^{−Γ_k t/2}, its population as
 // e^{−Γ_k t}; the lost norm is leakage out of the modelled levels
-// (spontaneous emission to elsewhere). h is read in full. StepDecay does not
-// allocate.
+// (spontaneous emission to elsewhere). As in Step, only the upper triangle
+// and the real diagonal of h are read. StepDecay does not allocate.
 func (p *Propagator) StepDecay(u, h *Mat, decay []float64, dt float64) {
 	n := p.n
 	if h.R != n || h.C != n || u.R != n || len(decay) != n {
 		panic(fmt.Sprintf("holonomy: Propagator.StepDecay: workspace %d, H %d×%d, u %d×%d, %d decay rates", n, h.R, h.C, u.R, u.C, len(decay)))
 	}
 	a := p.w
-	for i, v := range h.Data[:n*n] {
-		a.Data[i] = complex(imag(v)*dt, -real(v)*dt) // −i h dt
-	}
+	hermitianTimesMinusI(a.Data, h.Data, n, dt)
 	for k, g := range decay {
 		a.Data[k*n+k] -= complex(g*dt/2, 0)
 	}
-	p.exp.Exp(a, a)
 	t := p.tmpFor(u)
+	if n > 1 {
+		m, nn, s, ok := p.exp.pade(a.Data)
+		if ok && s == 0 {
+			// exp ≈ M⁻¹N without squaring: u ← M⁻¹(N u).
+			num := Mat{R: n, C: n, Data: nn}
+			Mul(t, &num, u)
+			luSolve(m, t.Data, n, u.C)
+			u.Copy(t)
+			return
+		}
+	}
+	p.exp.Exp(a, a)
 	t.Copy(u)
 	Mul(u, a, t)
+}
+
+// hermitianTimesMinusI sets a = −i h dt for the Hermitian n×n matrix h
+// given by its upper triangle and real diagonal.
+func hermitianTimesMinusI(a, h []complex128, n int, dt float64) {
+	a, h = a[:n*n], h[:n*n]
+	for i := 0; i < n; i++ {
+		a[i*n+i] = complex(0, -real(h[i*n+i])*dt)
+		for j := i + 1; j < n; j++ {
+			v := h[i*n+j]
+			x := complex(imag(v)*dt, -real(v)*dt) // −i h_ij dt
+			a[i*n+j] = x
+			a[j*n+i] = complex(-real(x), imag(x)) // −conj(x)
+		}
+	}
 }
 
 // tmpFor returns an n×c scratch matrix shaped like u; it allocates only

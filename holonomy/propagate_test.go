@@ -207,7 +207,7 @@ func TestDecayTwoLevel(t *testing.T) {
 // switch-over norm, for several sizes, on propagators and state vectors.
 func TestStepPaths(t *testing.T) {
 	rng := rand.New(rand.NewPCG(41, 42))
-	for _, n := range []int{2, 3, 4, 5, 8, 16} {
+	for _, n := range []int{1, 2, 3, 4, 5, 8, 16} {
 		for _, target := range []float64{1e-4, 0.2, 1, 5.3, 5.4, 60} {
 			h := dynRandHermitian(rng, n, 1)
 			b := NewMat(n, n)
@@ -281,6 +281,27 @@ func TestStepDecayMatchesStep(t *testing.T) {
 		decay[n-1] = 1e6
 		u3 := Identity(n)
 		p.StepDecay(u3, h, decay, 1e-6)
+		// Only the upper triangle and the real diagonal of h are read.
+		hg := h.Clone()
+		for i := 0; i < n; i++ {
+			hg.Data[i*n+i] += 5i
+			for j := 0; j < i; j++ {
+				hg.Set(i, j, 1e9)
+			}
+		}
+		u4 := Identity(n)
+		p.StepDecay(u4, hg, decay, 1e-6)
+		if d := FrobeniusDist(u3, u4); d != 0 {
+			t.Errorf("n=%d: StepDecay reads the lower triangle (difference %g)", n, d)
+		}
+		l := NewLindblad(n, decay, decay)
+		r1, r2 := dynRandDensity(rng, n), NewMat(n, n)
+		r2.Copy(r1)
+		l.Step(r1, h, 1e-6)
+		l.Step(r2, hg, 1e-6)
+		if d := FrobeniusDist(r1, r2); d != 0 {
+			t.Errorf("n=%d: Lindblad.Step reads the lower triangle (difference %g)", n, d)
+		}
 		for j := 0; j < n; j++ {
 			var nrm float64
 			for i := 0; i < n; i++ {
@@ -303,10 +324,12 @@ func TestPropagatorAllocs(t *testing.T) {
 		u := Identity(n)
 		psi := NewMat(n, 1)
 		for name, f := range map[string]func(){
-			"Step small":  func() { p.Step(u, h, 0.01) },
-			"Step large":  func() { p.Step(u, h, 100) },
-			"Step vector": func() { p.Step(psi, h, 0.01) },
-			"StepDecay":   func() { p.StepDecay(u, h, decay, 0.5) },
+			"Step small":       func() { p.Step(u, h, 0.01) },
+			"Step large":       func() { p.Step(u, h, 100) },
+			"Step vector":      func() { p.Step(psi, h, 0.01) },
+			"StepDecay":        func() { p.StepDecay(u, h, decay, 0.5) },
+			"StepDecay long":   func() { p.StepDecay(u, h, decay, 50) },
+			"StepDecay vector": func() { p.StepDecay(psi, h, decay, 0.01) },
 		} {
 			if a := testing.AllocsPerRun(20, f); a != 0 {
 				t.Errorf("n=%d %s: %v allocations", n, name, a)
@@ -404,4 +427,27 @@ func ExamplePropagator_Step() {
 	fmt.Printf("P(g) = %.4f, P(e) = %.4f\n", dynRound4(dynSqAbs(psi.At(0, 0))), dynRound4(dynSqAbs(psi.At(1, 0))))
 	// Output:
 	// P(g) = 0.0000, P(e) = 1.0000
+}
+
+// TestStepLongSequence: 10⁴ steps of a constant Hamiltonian reproduce the
+// single exponential exp(−iH·N dt) and stay unitary. Rounding errors grow at
+// most linearly, by about 1e-16 per step (measured: 1e-12 after 10⁴ steps,
+// against 9e-12 when every step goes through the eigendecomposition).
+func TestStepLongSequence(t *testing.T) {
+	rng := rand.New(rand.NewPCG(47, 48))
+	h := dynRandHermitian(rng, 4, 2*math.Pi*5e6)
+	const steps = 10000
+	dt := 2e-9
+	p := NewPropagator(4)
+	u := Identity(4)
+	for k := 0; k < steps; k++ {
+		p.Step(u, h, dt)
+	}
+	want := expmByEigen(h, steps*dt)
+	if d := FrobeniusDist(u, want); d > 1e-11 {
+		t.Errorf("10⁴ steps differ from one exponential by %g", d)
+	}
+	if e := UnitarityError(u); e > 1e-12 {
+		t.Errorf("unitarity error %g after 10⁴ steps", e)
+	}
 }

@@ -10,7 +10,7 @@ import (
 // geoSpinMatrices builds S_x, S_y, S_z for spin s = twoS/2 in the basis
 // m = s, s−1, …, −s from the textbook ladder-operator matrix elements
 // ⟨m+1|S₊|m⟩ = √(s(s+1) − m(m+1)) (Sakurai, Modern Quantum Mechanics,
-// eq. (3.5.41)), independently of Spin.
+// ch. 3.5; from memory), independently of Spin.
 func geoSpinMatrices(twoS int) (sx, sy, sz *Mat) {
 	n := twoS + 1
 	s := float64(twoS) / 2

@@ -2,6 +2,7 @@ package holonomy
 
 import (
 	"errors"
+	"fmt"
 	"math"
 	"math/cmplx"
 	"strings"
@@ -65,7 +66,7 @@ func geoExpect(u *Mat, a, b []complex128) complex128 {
 }
 
 func TestBerryPhaseSpinHalfCone(t *testing.T) {
-	// Berry, Proc. R. Soc. A 392, 45 (1984), eq. (13) and §3: a spin in the
+	// Berry, Proc. R. Soc. A 392, 45 (1984), the spin example: a spin in the
 	// state m along a field whose direction circles a cone of solid angle
 	// Ω(C) = 2π(1 − cos θ) acquires γ_m = −m Ω(C); for spin-½ aligned with
 	// the field, γ = −π(1 − cos θ), and +π(1 − cos θ) anti-aligned.
@@ -264,6 +265,34 @@ func TestWilsonConvergenceOrder(t *testing.T) {
 			t.Errorf("spin-½ cone: convergence order %.3f < 2", q)
 		}
 	}
+	// No rounding floor at large N: the 1/N² law still holds from 16384 to
+	// 65536 points (errors near 1e-9), and the tracked eigenbasis stays
+	// orthonormal to rounding.
+	{
+		th := 0.9
+		want := cmplx.Exp(complex(0, -math.Pi*(1-math.Cos(th))))
+		w := NewWilson(Spin(1, 0))
+		u := NewMat(1, 1)
+		var errs []float64
+		for _, n := range []int{16384, 65536} {
+			if _, err := w.Loop(geoCone(th, 1), n, u); err != nil {
+				t.Fatal(err)
+			}
+			errs = append(errs, cmplx.Abs(u.Data[0]-want))
+		}
+		q := math.Log(errs[0]/errs[1]) / math.Log(4)
+		t.Logf("spin-½ cone at large N: errors %.2e, %.2e, order %.3f", errs[0], errs[1], q)
+		if q < 1.95 {
+			t.Errorf("spin-½ cone at large N: order %.3f", q)
+		}
+		wt := NewWilson(Tripod())
+		if _, err := wt.Loop(geoSmoothTripod, 65536, NewMat(2, 2)); err != nil {
+			t.Fatal(err)
+		}
+		if e := UnitarityError(wt.tr.v); e > 1e-13 {
+			t.Errorf("tracked basis after 65536 points: ‖V†V − I‖ = %.2g", e)
+		}
+	}
 	// Generic tripod loop (non-Abelian), reference by extrapolation.
 	{
 		w := NewWilson(Tripod())
@@ -340,13 +369,15 @@ func TestWilsonReversedLoopAndGauge(t *testing.T) {
 }
 
 func TestWilsonLoopAllocatesNothing(t *testing.T) {
+	qs, _, _, qset := geoQutrit()
 	for _, c := range []struct {
 		s    *Scheme
 		loop Loop
 	}{
 		{Tripod(), geoSmoothTripod},
 		{Spin(1, 0, 1), geoCone(0.8, 1)},
-		{Spin(4, 0, 1, 2), geoCone(0.5, 1)}, // a three-dimensional working subspace
+		{Spin(4, 0, 1, 2), geoCone(0.5, 1)}, // three one-state clusters
+		{qs, geoSector(1, 2, qset)},         // one three-state cluster
 	} {
 		w := NewWilson(c.s)
 		u := NewMat(w.K(), w.K())
@@ -497,5 +528,151 @@ func TestSamplingErrorAndRefinement(t *testing.T) {
 	res, err = w.Adaptive(loop, AdaptiveOptions{Points: 64, MaxPoints: 128, Tol: 1e-12})
 	if !errors.Is(err, ErrNotConverged) || res == nil || res.Points != 128 || res.ErrorEstimate <= 1e-12 {
 		t.Errorf("MaxPoints too small: %v, %+v", err, res)
+	}
+}
+
+func TestBerryPhaseLargeSpin(t *testing.T) {
+	// Berry (1984), γ_m = −m Ω(C) for any spin: the 16-level ladder
+	// s = 15/2 (the largest scheme), state m = +15/2.
+	th := 0.2
+	res, err := NewWilson(Spin(15, 0)).Adaptive(geoCone(th, 1), AdaptiveOptions{Tol: 1e-11, Extrapolate: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := cmplx.Exp(complex(0, -7.5*2*math.Pi*(1-math.Cos(th))))
+	if d := cmplx.Abs(res.U.Data[0] - want); d > 1e-9 {
+		t.Errorf("spin-15/2 m=+15/2: U = %v, want %v", res.U.Data[0], want)
+	} else {
+		t.Logf("spin-15/2 m=+15/2: |Δ| = %.1e with %d points", d, res.Points)
+	}
+}
+
+// geoQutrit is a four-pod: ground levels g0, g1, g2 (computational) and a,
+// each coupled to e, with three dark states; set writes real drives
+// Ω sinθ (cosφ u + sinφ w) on g0…g2 and Ω cosθ on a.
+func geoQutrit() (s *Scheme, u, w []float64, set func(p Point, th, ph float64)) {
+	s = &Scheme{
+		Name:   "qutrit",
+		Levels: []Level{{Name: "g0"}, {Name: "g1"}, {Name: "g2"}, {Name: "a"}, {Name: "e"}},
+		Channels: []Channel{
+			{Name: "p0", Lower: 0, Upper: 4, Factor: 1},
+			{Name: "p1", Lower: 1, Upper: 4, Factor: 1},
+			{Name: "p2", Lower: 2, Upper: 4, Factor: 1},
+			{Name: "pa", Lower: 3, Upper: 4, Factor: 1},
+		},
+		Computational: []int{0, 1, 2},
+	}
+	u = []float64{2 / 3.0, 1 / 3.0, 2 / 3.0}
+	w = []float64{-2 / 3.0, 2 / 3.0, 1 / 3.0} // u·w = 0, both unit
+	set = func(p Point, th, ph float64) {
+		for k := 0; k < 3; k++ {
+			p.Drive[k] = complex(geoOmega*math.Sin(th)*(math.Cos(ph)*u[k]+math.Sin(ph)*w[k]), 0)
+		}
+		p.Drive[3] = complex(geoOmega*math.Cos(th), 0)
+	}
+	return s, u, w, set
+}
+
+func TestThreeDimensionalDarkSubspace(t *testing.T) {
+	// Four ground levels g0, g1, g2, a coupled to e (three dark states,
+	// the qutrit g0, g1, g2 computational). Real drives
+	// Ω_k = Ω sinθ (cosφ u_k + sinφ w_k) on g0…g2 and Ω cosθ on a are the
+	// tripod of Duan, Cirac and Zoller (2001) in the ground basis
+	// {u, w, u×w}: the sector loop rotates u towards w by the solid angle
+	// α = (1 − cos θ₀)φ₀ and leaves u×w, which never couples, alone:
+	// U = I + sin α (w uᵀ − u wᵀ) + (cos α − 1)(u uᵀ + w wᵀ).
+	s, u, w, set := geoQutrit()
+	th0, ph0 := 1.0, 2.2
+	res, err := NewWilson(s).Adaptive(geoSector(th0, ph0, set), AdaptiveOptions{Points: 48, Tol: 1e-10, Extrapolate: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	al := (1 - math.Cos(th0)) * ph0
+	want := Identity(3)
+	for i := 0; i < 3; i++ {
+		for j := 0; j < 3; j++ {
+			want.Data[i*3+j] += complex(math.Sin(al)*(w[i]*u[j]-u[i]*w[j])+(math.Cos(al)-1)*(u[i]*u[j]+w[i]*w[j]), 0)
+		}
+	}
+	if d := FrobeniusDist(res.U, want); d > 1e-8 {
+		t.Errorf("qutrit holonomy\n%vwant\n%v(‖Δ‖ = %.2g)", res.U, want, d)
+	} else {
+		t.Logf("qutrit (3-dim dark subspace): ‖U − U_exact‖ = %.1e with %d points", d, res.Points)
+	}
+}
+
+func TestCoupledRingStokes(t *testing.T) {
+	// Any coupling graph: six levels on a ring with a chord, complex drives,
+	// two non-degenerate computational states (two clusters). Stokes'
+	// theorem (Berry 1984): arg det U of the boundary loop equals the flux
+	// of Tr F through the surface.
+	s := &Scheme{Name: "ring6", Computational: []int{0, 1}}
+	for i := 0; i < 6; i++ {
+		s.Levels = append(s.Levels, Level{Name: fmt.Sprintf("r%d", i), Detuning: geoOmega * []float64{0, 0.35, 1.4, 1.9, 2.6, 3.1}[i]})
+		s.Channels = append(s.Channels, Channel{Name: fmt.Sprintf("c%d", i), Lower: i, Upper: (i + 1) % 6, Factor: 1})
+	}
+	s.Channels = append(s.Channels, Channel{Name: "chord", Lower: 1, Upper: 4, Factor: 0.7})
+	surf := func(u, v float64, p Point) {
+		z := complex(0.25*geoOmega*u, 0) * cmplx.Exp(complex(0, 2*math.Pi*v))
+		for c := range p.Drive {
+			p.Drive[c] = cmplx.Rect(0.2*geoOmega, 0.3*float64(c))
+		}
+		p.Drive[0] += z
+		p.Drive[6] += 0.5 * z * z / complex(geoOmega, 0)
+		p.Detuning[2] = 0.1 * geoOmega * u * math.Cos(2*math.Pi*v)
+	}
+	flux, err := NewFlux(s).Integral(surf, 24)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := NewWilson(s).Adaptive(func(x float64, p Point) { surf(1, x, p) }, AdaptiveOptions{Tol: 1e-12, Extrapolate: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	det := res.U.At(0, 0)*res.U.At(1, 1) - res.U.At(0, 1)*res.U.At(1, 0)
+	if d := math.Abs(cmplx.Phase(det) - flux); d > 1e-9 {
+		t.Errorf("ring: arg det U = %.12g, flux %.12g", cmplx.Phase(det), flux)
+	} else {
+		t.Logf("six-level ring: arg det U = flux = %.6e (|Δ| = %.1e)", flux, d)
+	}
+	if e := UnitarityError(res.U); e > 1e-12 {
+		t.Errorf("ring holonomy not unitary: %g", e)
+	}
+}
+
+func TestGapTolGroupsSplitPair(t *testing.T) {
+	// A small two-photon detuning δ on g1 splits the tripod's dark pair.
+	// By default the two states are separate clusters (adiabatic with
+	// respect to δ: no mixing, block-diagonal holonomy); with GapTol above δ
+	// they form one cluster whose holonomy is close to the rotation of Duan,
+	// Cirac and Zoller (2001), off by a small amount that vanishes with δ.
+	s := Tripod()
+	s.Levels[1].Detuning = 1e-3 * geoOmega
+	th0, ph0 := 1.0, 1.5
+	loop := geoSector(th0, ph0, geoTripodDCZ)
+	w := NewWilson(s)
+	res, err := w.Adaptive(loop, AdaptiveOptions{Points: 48, Tol: 1e-9, Extrapolate: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if off := cmplx.Abs(res.U.At(0, 1)) + cmplx.Abs(res.U.At(1, 0)); off > 1e-12 {
+		t.Errorf("split pair, default tolerance: U not diagonal\n%v", res.U)
+	}
+	// The splitting of the two near-dark states is δ times a factor ≤ 1 that
+	// varies along the loop (it is δ at the base point, where they are g0
+	// and g1).
+	if !(res.Gap.Min > 0 && res.Gap.Min <= 1e-3*geoOmega*(1+1e-9)) {
+		t.Errorf("split pair: gap %g, want between 0 and δ = %g", res.Gap.Min, 1e-3*geoOmega)
+	}
+	w.GapTol = 0.01 * geoOmega
+	res, err = w.Adaptive(loop, AdaptiveOptions{Points: 48, Tol: 1e-9, Extrapolate: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := FrobeniusDist(res.U, geoRotation((1-math.Cos(th0))*ph0))
+	if d > 0.01 || d == 0 {
+		t.Errorf("split pair as one cluster: ‖U − R(α)‖ = %g, want small but non-zero", d)
+	} else {
+		t.Logf("split pair (δ = 1e-3 Ω) as one cluster: ‖U − R(α)‖ = %.1e", d)
 	}
 }
