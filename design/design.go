@@ -84,16 +84,11 @@ func Design(ctx context.Context, spec *Spec, opt Options) (*Outcome, error) {
 	}
 	logf(opt.Log, "holonomy infidelity %.2e after %d evaluations", sol.summary.Infidelity, sol.summary.Evaluations)
 
-	hw := hardwareOf(spec)
-	w, err := waveform.Build(sol.plan, hw)
+	w, err := timeLoop(spec, sol.plan, opt.Log)
 	if err != nil {
-		var le *waveform.LimitError
-		if errors.As(err, &le) {
-			return nil, &InfeasibleError{Err: fmt.Errorf("spec %s: %w", spec.File, err)}
-		}
-		return nil, fmt.Errorf("spec %s: timing and sampling: %w", spec.File, err)
+		return nil, err
 	}
-	logf(opt.Log, "sampled %d samples (%.4g s) at %s", w.Len(), w.Duration(), FormatQuantity(hw.SampleRate, SampleRate))
+	logf(opt.Log, "sampled %d samples (%.4g s) at %s", w.Len(), w.Duration(), FormatQuantity(w.Hardware.SampleRate, SampleRate))
 
 	a, err := analyse(ctx, w, errorModelOf(spec), sweepsOf(spec), !opt.NoSweeps, opt.Progress, opt.Log)
 	if err != nil {
@@ -141,6 +136,108 @@ func Design(ctx context.Context, spec *Spec, opt Options) (*Outcome, error) {
 	}
 	logf(opt.Log, "wrote %d files to %s", len(out.Files), opt.OutDir)
 	return out, out.err()
+}
+
+// maxTimingRounds bounds how often timeLoop re-times a loop.
+const maxTimingRounds = 8
+
+// timeLoop times and samples the plan. Adiabatic plans start from
+// waveform.DefaultAdiabaticity; while the ideal-model fidelity of the
+// sampled waveform misses the goal, the adiabaticity goal α is tightened
+// (the non-adiabatic error of a smooth schedule falls at least as fast as
+// α², so α is scaled by 0.7·√((1−F_goal)/(1−F)), kept between ×0.25 and
+// ×0.9) and the loop re-timed. When a tighter goal breaks a hardware limit
+// (the gate gets too long), α is bisected geometrically between the last
+// waveform that fits and the one that does not. It stops when the goal is
+// met or after maxTimingRounds, and returns the waveform with the best
+// fidelity among those that fit the hardware (or the first one built, if
+// none fits); its checks tell whether it meets the goal.
+func timeLoop(spec *Spec, plan *waveform.Plan, log io.Writer) (*waveform.Waveform, error) {
+	hw := hardwareOf(spec)
+	adiabatic := false
+	for _, s := range plan.Segments {
+		adiabatic = adiabatic || s.Kind == waveform.Adiabatic
+	}
+	goal := waveform.DefaultMinFidelity
+	if plan.MinFidelity != 0 {
+		goal = plan.MinFidelity
+	}
+	var (
+		best       *waveform.Waveform
+		bestF      = -1.0
+		fits       = math.NaN() // loosest α known to fit the hardware
+		tooTight   = math.NaN() // tightest α known to break it
+		alpha      = waveform.DefaultAdiabaticity
+		firstBuilt *waveform.Waveform
+	)
+	for round := 0; round < maxTimingRounds; round++ {
+		plan.Adiabaticity = alpha
+		w, err := waveform.Build(plan, hw)
+		if err != nil {
+			var le *waveform.LimitError
+			if !errors.As(err, &le) {
+				return nil, fmt.Errorf("spec %s: timing and sampling: %w", spec.File, err)
+			}
+			if firstBuilt == nil && best == nil && round == 0 {
+				return nil, &InfeasibleError{Err: fmt.Errorf("spec %s: %w", spec.File, err)}
+			}
+			tooTight = alpha
+		} else {
+			if firstBuilt == nil {
+				firstBuilt = w
+			}
+			if !adiabatic {
+				return w, nil
+			}
+			v, err := waveform.Verify(w, waveform.ErrorModel{})
+			if err != nil {
+				return nil, fmt.Errorf("spec %s: verification: %w", spec.File, err)
+			}
+			if !hardwareOK(v) {
+				tooTight = alpha
+			} else {
+				fits = alpha
+				if v.Fidelity > bestF {
+					best, bestF = w, v.Fidelity
+				}
+				if v.Fidelity >= goal {
+					return w, nil
+				}
+				f := 0.7 * math.Sqrt((1-goal)/(1-v.Fidelity))
+				f = math.Max(0.25, math.Min(0.9, f))
+				logf(log, "fidelity %.6f misses %.4g at adiabaticity goal %.3g (%s); re-timing",
+					v.Fidelity, goal, alpha, FormatQuantity(w.Duration(), Time))
+				alpha *= f
+			}
+		}
+		if !math.IsNaN(tooTight) {
+			if math.IsNaN(fits) {
+				break
+			}
+			alpha = math.Sqrt(fits * tooTight)
+			if fits/tooTight < 1.02 {
+				break
+			}
+		}
+	}
+	if best != nil {
+		if bestF < goal {
+			logf(log, "the fidelity goal %.4g is out of reach within the hardware limits; best %.6f", goal, bestF)
+		}
+		return best, nil
+	}
+	return firstBuilt, nil
+}
+
+// hardwareOK reports whether every hardware check of v passes (the
+// fidelity and adiabaticity goals are not hardware checks).
+func hardwareOK(v *waveform.Verification) bool {
+	for _, c := range v.Checks {
+		if !c.Pass && c.Name != "fidelity" && c.Name != "adiabaticity" {
+			return false
+		}
+	}
+	return true
 }
 
 // solution is what the search stage hands on.
@@ -313,7 +410,6 @@ func robustSummary(r *optimize.RobustReport) *RobustSummary {
 		Kept:         r.Kept,
 	}
 }
-
 
 // hardwareOf converts the spec's hardware section for package waveform.
 // The waveform stage has one slew limit for all channels: the smallest.

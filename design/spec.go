@@ -237,8 +237,10 @@ type ErrorModel struct {
 	TwoPhoton float64
 	// Dephasing is γ_φ in 1/s: a qubit coherence decays as exp(−γ_φ t).
 	Dephasing float64
-	// Filter is the bandwidth model and RiseTime its 10–90 % rise time in s.
-	Filter   Filter
+	// Filter is the model of the AWG's analog bandwidth.
+	Filter Filter
+	// RiseTime is the filter's 10–90 % rise time in seconds (0 without
+	// a filter).
 	RiseTime float64
 	// Quantise applies DAC quantisation.
 	Quantise bool
@@ -259,8 +261,9 @@ type Sweep struct {
 type Sweeps struct {
 	// Amplitude sweeps the common amplitude error.
 	Amplitude Sweep
-	// Detuning sweeps a detuning error of kind DetuningKind.
-	Detuning     Sweep
+	// Detuning sweeps a detuning error (Span as Δ/2π in Hz).
+	Detuning Sweep
+	// DetuningKind says which detuning the sweep and the map vary.
 	DetuningKind DetuningKind
 	// MapAmplitude and MapDetuning are the grid sizes of the 2-D map over
 	// the spans of the 1-D sweeps.
@@ -287,11 +290,14 @@ type Spec struct {
 	Excited []int
 	// Method is how the gate is made.
 	Method Method
-	// Hardware, Search, Errors and Sweeps hold the remaining sections.
+	// Hardware holds the hardware limits.
 	Hardware Hardware
-	Search   Search
-	Errors   ErrorModel
-	Sweeps   Sweeps
+	// Search holds the loop-search settings.
+	Search Search
+	// Errors holds the error models of verification.
+	Errors ErrorModel
+	// Sweeps holds the robustness sweeps.
+	Sweeps Sweeps
 	// Source holds the spec bytes as read.
 	Source []byte
 }

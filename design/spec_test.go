@@ -536,3 +536,66 @@ func TestParseDeterministic(t *testing.T) {
 		}
 	}
 }
+
+func TestSearchErrorsSweepsSections(t *testing.T) {
+	src := minimalSpec + `search:
+  family: polygon
+  vertices: 5
+  restarts: 3
+  seed: 9007199254740991
+  target_infidelity: "2 ppm"
+  evaluations: 1000
+  loop_points: 512
+  robust: {amplitude: "3 %", detuning: "150 kHz", detuning_kind: two-photon}
+errors:
+  amplitude: {p0: 0.02, pa: "-1 %"}
+  two_photon_detuning: "-3 kHz"
+  dephasing: "1e3 /s"
+  filter: first-order
+  rise_time: "1.5 ns"
+  quantise: false
+  phase_step: "0.5 deg"
+sweeps:
+  amplitude: {span: "5 %", points: 21}
+  detuning: {span: "500 kHz", points: 11, kind: two-photon}
+  map: {amplitude_points: 7, detuning_points: 9}
+`
+	s := mustParse(t, src, "sections.yaml")
+	r := s.Search
+	if r.Family != Polygon || r.Vertices != 5 || r.Restarts != 3 || r.Seed != MaxSeed || !near(r.TargetInfidelity, 2e-6) ||
+		r.Evaluations != 1000 || r.LoopPoints != 512 {
+		t.Errorf("search %+v", r)
+	}
+	if !r.Robust.Enabled() || r.Robust != (Ensemble{Amplitude: 0.03, Detuning: 150e3, DetuningKind: TwoPhoton}) {
+		t.Errorf("robust %+v", r.Robust)
+	}
+	e := s.Errors
+	if !reflect.DeepEqual(e.Amplitude, []float64{0.02, 0, -0.01}) || e.TwoPhoton != -3e3 || e.Dephasing != 1e3 ||
+		e.Filter != FirstOrderFilter || e.RiseTime != 1.5e-9 || e.Quantise || !near(e.PhaseStep, math.Pi/360) {
+		t.Errorf("errors %+v", e)
+	}
+	w := s.Sweeps
+	if w.Amplitude != (Sweep{0.05, 21}) || w.Detuning != (Sweep{5e5, 11}) || w.DetuningKind != TwoPhoton || w.MapAmplitude != 7 || w.MapDetuning != 9 {
+		t.Errorf("sweeps %+v", w)
+	}
+	for _, c := range []struct{ v, want string }{
+		{s.Method.String(), "adiabatic"}, {Nonadiabatic.String(), "nonadiabatic"}, {Method(0).String(), "Method(0)"},
+		{r.Family.String(), "polygon"}, {Fourier.String(), "fourier"}, {LoopFamily(9).String(), "LoopFamily(9)"},
+		{OnePhoton.String(), "one-photon"}, {TwoPhoton.String(), "two-photon"}, {DetuningKind(0).String(), "DetuningKind(0)"},
+		{NoFilter.String(), "none"}, {GaussianFilter.String(), "gaussian"}, {e.Filter.String(), "first-order"}, {Filter(7).String(), "Filter(7)"},
+	} {
+		if c.v != c.want {
+			t.Errorf("String() = %q, want %q", c.v, c.want)
+		}
+	}
+	// Settings of the other loop family are refused, not ignored.
+	bad := strings.Replace(src, "  vertices: 5\n", "  vertices: 5\n  harmonics: 4\n", 1)
+	if _, err := ParseSpec([]byte(bad), "b.yaml"); err == nil || !strings.Contains(err.Error(), "search.harmonics (line 17, col 14): only used with family: fourier") {
+		t.Errorf("harmonics with polygon: %v", err)
+	}
+	bad = strings.Replace(minimalSpec, "scheme: {preset: tripod}", "scheme: {preset: spin-1/2}", 1) + "errors: {one_photon_detuning: \"1 kHz\"}\n"
+	bad = strings.Replace(bad, "{gate: T}", "{gate: Z}", 1)
+	if _, err := ParseSpec([]byte(bad), "b.yaml"); err == nil || !strings.Contains(err.Error(), "errors.one_photon_detuning (line 14, col 31): one-photon detuning needs an excited level") {
+		t.Errorf("one-photon on spin-1/2: %v", err)
+	}
+}
