@@ -78,8 +78,10 @@ func FuzzReadWaveform(f *testing.F) {
 		if err := again.WriteJSON(&b2); err != nil || !bytes.Equal(b1.Bytes(), b2.Bytes()) {
 			t.Fatalf("write → read → write is not stable (%v)", err)
 		}
-		if file.Waveform.Len() <= 64 {
-			Verify(file.Waveform, file.Verification.Model) // must not panic
+		// Small files must also verify without panicking (the slower
+		// density-matrix and filter paths are left to the unit tests).
+		if m := file.Verification.Model; file.Waveform.Len() <= 64 && m.Dephasing == 0 && m.RiseTime == 0 {
+			Verify(file.Waveform, m)
 		}
 	})
 }

@@ -90,7 +90,8 @@ func (s *Simulator) runLindblad(m *ErrorModel, steps, sub, pad, stride int, dt f
 	lw.reset(comp, s.decay, s.isComp, m.Dephasing)
 	s.recordRho(out, stride, 0, pad)
 	for j := 0; j < steps; j++ {
-		s.hamiltonian(j)
+		s.controls(j)
+		s.hamiltonian()
 		lw.step(s.h, dt)
 		if (j+1)%sub == 0 {
 			s.recordRho(out, stride, (j+1)/sub, pad)

@@ -373,3 +373,50 @@ func TestTwoPhotonDetuningIdle(t *testing.T) {
 		t.Errorf("F = 1 − %.3g", 1-out.Fidelity)
 	}
 }
+
+// coneLoop takes a spin-½ field direction from the pole down to polar
+// angle θ₀, once around the cone and back up (holonomy.SpinPoint, unit
+// field; the meridian legs enclose no solid angle).
+func coneLoop(theta0 float64) holonomy.Loop {
+	return func(s float64, p holonomy.Point) {
+		var th, ph float64
+		switch {
+		case s < 0.25:
+			th = theta0 * 4 * s
+		case s < 0.75:
+			th, ph = theta0, 4*math.Pi*(s-0.25)
+		default:
+			th = theta0 * (4 - 4*s)
+		}
+		holonomy.SpinPoint(p, 1, th, ph)
+	}
+}
+
+// Adiabatic spin-½ gate from Berry phases (Berry, Proc. R. Soc. A 392, 45
+// (1984)): around a cone of polar angle θ₀ the state along the field
+// (level m = +½) acquires γ = −π(1 − cos θ₀) and the opposite one +π(1 −
+// cos θ₀), in the sign convention of package holonomy. Both levels are
+// computational and not degenerate, so the timing must also make their
+// dynamical phase difference a multiple of 2π; then the sampled gate is
+// diag(e^{iγ}, e^{−iγ}) up to a global phase.
+func TestSpinHalfBerryPhase(t *testing.T) {
+	sc := holonomy.Spin(1, 0, 1)
+	for _, theta0 := range []float64{math.Pi / 3, 0.4 * math.Pi} {
+		g := -math.Pi * (1 - math.Cos(theta0))
+		target := holonomy.NewMatFrom(2, 2, []complex128{cmplx.Rect(1, g), 0, 0, cmplx.Rect(1, -g)})
+		res, err := holonomy.NewWilson(sc).Adaptive(coneLoop(theta0), holonomy.AdaptiveOptions{Points: 64, Tol: 1e-7, Extrapolate: true})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if d := holonomy.FrobeniusDist(res.U, target); d > 1e-6 {
+			t.Fatalf("θ₀ = %g: Wilson loop %v differs from the Berry phases by %g", theta0, res.U, d)
+		}
+		p := &Plan{Scheme: sc, Target: target, Segments: []Segment{{Kind: Adiabatic, Shape: coneLoop(theta0)}}, Adiabaticity: 0.03}
+		w := mustBuild(t, p, testHardware(1, 10e6))
+		v := mustVerify(t, w, ErrorModel{})
+		t.Logf("θ₀ = %.3g: %d samples, F = %.9f, α = %.4g, detuning tracks on %v", theta0, w.Len(), v.Fidelity, v.Adiabaticity, w.Detuning[0] != nil)
+		if v.Fidelity < 0.9999 || !v.Pass() {
+			t.Errorf("θ₀ = %g: F = %.8f, failed %v", theta0, v.Fidelity, v.Failed())
+		}
+	}
+}

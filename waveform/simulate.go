@@ -106,9 +106,16 @@ type Simulator struct {
 	pt       holonomy.Point
 	decay    []float64
 	zero     []float64
-	drive    []complex128 // steps × nch, rad/s
-	det      []float64    // steps × nlev, rad/s (controls + errors)
-	kernel   []float64    // filter weights, sub × (2R+1)
+	drv      []complex128 // current step's drives, rad/s
+	prevDrv  []complex128
+	dtn      []float64 // current step's controlled + error detunings, rad/s
+	prevDtn  []float64
+	scale    []float64 // 2π(1 + ε)(1 + ε_c) per channel
+	errDet   []float64 // error detunings per level, rad/s
+	m        ErrorModel
+	sub, pad int
+	R        int       // filter half-width in samples
+	kernel   []float64 // filter weights, sub × (2R+1)
 	kerSigma float64
 	kerSub   int
 	isComp   []bool
@@ -131,6 +138,12 @@ func NewSimulator(w *Waveform) *Simulator {
 		zero:    make([]float64, n),
 		isComp:  make([]bool, n),
 		isExc:   make([]bool, n),
+		drv:     make([]complex128, len(w.Scheme.Channels)),
+		prevDrv: make([]complex128, len(w.Scheme.Channels)),
+		dtn:     make([]float64, n),
+		prevDtn: make([]float64, n),
+		scale:   make([]float64, len(w.Scheme.Channels)),
+		errDet:  make([]float64, n),
 	}
 	for _, k := range w.Scheme.Computational {
 		s.isComp[k] = true
@@ -176,6 +189,9 @@ func (s *Simulator) validate(m *ErrorModel) error {
 	if !finite(m.RiseTime) || m.RiseTime < 0 {
 		return fmt.Errorf("error model: rise time %v s; need a finite number ≥ 0", m.RiseTime)
 	}
+	if m.RiseTime > s.w.Duration() {
+		return fmt.Errorf("error model: rise time %g s is longer than the waveform (%g s)", m.RiseTime, s.w.Duration())
+	}
 	if m.RiseTime > 0 && m.RiseTime/gaussRise*filterReach*s.w.Hardware.SampleRate > maxFilterSamples {
 		return fmt.Errorf("error model: rise time %g s spans more than %d samples", m.RiseTime, maxFilterSamples/filterReach)
 	}
@@ -188,6 +204,10 @@ func (s *Simulator) validate(m *ErrorModel) error {
 	return nil
 }
 
+// maxSteps bounds the propagation steps of one simulation (samples plus
+// filter margins, times sub-steps).
+const maxSteps = 1 << 24
+
 // Run propagates the waveform under m and stores the result in out,
 // reusing out's slices when they are large enough.
 func (s *Simulator) Run(m ErrorModel, out *Outcome) error {
@@ -195,9 +215,8 @@ func (s *Simulator) Run(m ErrorModel, out *Outcome) error {
 		return err
 	}
 	w := s.w
-	n, nlev, nch := s.n, s.n, s.nch
+	n := s.n
 	N := w.Len()
-	// Per-step controls.
 	sub, pad := 1, 0
 	if m.RiseTime > 0 {
 		sub = m.SubSteps
@@ -206,24 +225,28 @@ func (s *Simulator) Run(m ErrorModel, out *Outcome) error {
 		}
 		sigma := m.RiseTime / gaussRise
 		pad = int(math.Ceil(filterReach*sigma*w.Hardware.SampleRate)) + 1
+		s.R = s.setKernel(sigma, sub)
 	}
 	steps := (N + 2*pad) * sub
-	s.drive = grow(s.drive, steps*nch)
-	s.det = growF(s.det, steps*nlev)
-	s.fillControls(&m, sub, pad)
-	// Error detunings.
-	var errDet [holonomy.MaxLevels]float64
+	if steps > maxSteps {
+		return fmt.Errorf("error model: the simulation needs %d propagation steps; the limit is %d", steps, maxSteps)
+	}
+	s.m, s.sub, s.pad = m, sub, pad
+	for c := 0; c < s.nch; c++ {
+		f := 2 * math.Pi * (1 + m.AmplitudeError)
+		if m.ChannelErrors != nil {
+			f *= 1 + m.ChannelErrors[c]
+		}
+		s.scale[c] = f
+	}
+	for k := range s.errDet {
+		s.errDet[k] = 0
+	}
 	for _, k := range s.excited {
-		errDet[k] += 2 * math.Pi * m.OnePhotonDetuning
+		s.errDet[k] += 2 * math.Pi * m.OnePhotonDetuning
 	}
 	if m.TwoPhotonDetuning != 0 {
-		errDet[w.Scheme.Computational[1]] += 2 * math.Pi * m.TwoPhotonDetuning
-	}
-	for j := 0; j < steps; j++ {
-		row := s.det[j*nlev : (j+1)*nlev]
-		for k := range row {
-			row[k] += errDet[k]
-		}
+		s.errDet[w.Scheme.Computational[1]] += 2 * math.Pi * m.TwoPhotonDetuning
 	}
 	for i := range s.decay {
 		s.decay[i] = 0
@@ -267,19 +290,20 @@ func (s *Simulator) Run(m ErrorModel, out *Outcome) error {
 	eValid := false
 	s.record(out, stride, 0, pad)
 	for j := 0; j < steps; j++ {
-		same := j > 0 && s.sameStep(j)
-		if same {
+		s.controls(j)
+		if j > 0 && s.sameAsPrevious() {
 			if !eValid {
 				s.e.SetIdentity()
-				s.step(s.e, j, dt, lossy)
+				s.step(s.e, dt, lossy)
 				eValid = true
 			}
 			holonomy.Mul(s.tmp, s.e, s.u)
 			s.u, s.tmp = s.tmp, s.u
 		} else {
 			eValid = false
-			s.step(s.u, j, dt, lossy)
+			s.step(s.u, dt, lossy)
 		}
+		s.keep()
 		if (j+1)%sub == 0 {
 			s.record(out, stride, (j+1)/sub, pad)
 		}
@@ -288,9 +312,9 @@ func (s *Simulator) Run(m ErrorModel, out *Outcome) error {
 	return nil
 }
 
-// step applies the propagator of step j to u.
-func (s *Simulator) step(u *holonomy.Mat, j int, dt float64, lossy bool) {
-	s.hamiltonian(j)
+// step applies the propagator of the current controls to u.
+func (s *Simulator) step(u *holonomy.Mat, dt float64, lossy bool) {
+	s.hamiltonian()
 	if lossy {
 		s.prop.StepDecay(u, s.h, s.decay, dt)
 	} else {
@@ -298,28 +322,33 @@ func (s *Simulator) step(u *holonomy.Mat, j int, dt float64, lossy bool) {
 	}
 }
 
-// hamiltonian sets s.h to H of step j.
-func (s *Simulator) hamiltonian(j int) {
-	copy(s.pt.Drive, s.drive[j*s.nch:(j+1)*s.nch])
-	copy(s.pt.Detuning, s.det[j*s.n:(j+1)*s.n])
+// hamiltonian sets s.h to H of the current controls.
+func (s *Simulator) hamiltonian() {
+	copy(s.pt.Drive, s.drv)
+	copy(s.pt.Detuning, s.dtn)
 	s.w.Scheme.Hamiltonian(s.h, s.pt)
 }
 
-// sameStep reports whether step j has the same controls as step j−1.
-func (s *Simulator) sameStep(j int) bool {
-	a, b := s.drive[j*s.nch:(j+1)*s.nch], s.drive[(j-1)*s.nch:j*s.nch]
-	for i := range a {
-		if a[i] != b[i] {
+// sameAsPrevious reports whether the current controls equal the previous
+// step's.
+func (s *Simulator) sameAsPrevious() bool {
+	for i, v := range s.drv {
+		if v != s.prevDrv[i] {
 			return false
 		}
 	}
-	x, y := s.det[j*s.n:(j+1)*s.n], s.det[(j-1)*s.n:j*s.n]
-	for i := range x {
-		if x[i] != y[i] {
+	for i, v := range s.dtn {
+		if v != s.prevDtn[i] {
 			return false
 		}
 	}
 	return true
+}
+
+// keep remembers the current controls as the previous step's.
+func (s *Simulator) keep() {
+	s.drv, s.prevDrv = s.prevDrv, s.drv
+	s.dtn, s.prevDtn = s.prevDtn, s.dtn
 }
 
 // record updates the peak auxiliary populations after sample boundary q
@@ -357,68 +386,51 @@ func (s *Simulator) record(out *Outcome, stride, q, pad int) {
 	}
 }
 
-// fillControls writes the drive (rad/s, with amplitude errors) and the
-// controlled detuning tracks (rad/s) of every step, filtered when sub > 1.
-func (s *Simulator) fillControls(m *ErrorModel, sub, pad int) {
+// sample returns the drive of channel c at sample k (Hz), from the DAC
+// codes or, for an unquantised model, from I and Q.
+func (s *Simulator) sample(c, k int) complex128 {
+	if s.m.Unquantized {
+		return complex(s.w.I[c][k], s.w.Q[c][k])
+	}
+	return s.w.Quantized(c, k)
+}
+
+// controls sets s.drv (rad/s, with amplitude errors) and s.dtn (controlled
+// tracks and error detunings, rad/s) for step j, filtered when the model
+// has a rise time.
+func (s *Simulator) controls(j int) {
 	w := s.w
-	N, nch, nlev := w.Len(), s.nch, s.n
-	var scale [256]float64
-	for c := 0; c < nch; c++ {
-		f := 2 * math.Pi * (1 + m.AmplitudeError)
-		if m.ChannelErrors != nil {
-			f *= 1 + m.ChannelErrors[c]
+	drv, dtn := s.drv, s.dtn
+	if s.sub == 1 && s.pad == 0 {
+		for c := range drv {
+			drv[c] = s.sample(c, j) * complex(s.scale[c], 0)
 		}
-		scale[c] = f
-	}
-	src := func(c, k int) complex128 {
-		if m.Unquantized {
-			return complex(w.I[c][k], w.Q[c][k])
-		}
-		return w.Quantized(c, k)
-	}
-	if m.RiseTime == 0 {
-		for k := 0; k < N; k++ {
-			for c := 0; c < nch; c++ {
-				s.drive[k*nch+c] = src(c, k) * complex(scale[c], 0)
+		for l := range dtn {
+			v := s.errDet[l]
+			if tr := w.Detuning[l]; tr != nil {
+				v += 2 * math.Pi * tr[j]
 			}
-			for l := 0; l < nlev; l++ {
-				v := 0.0
-				if w.Detuning[l] != nil {
-					v = 2 * math.Pi * w.Detuning[l][k]
-				}
-				s.det[k*nlev+l] = v
-			}
+			dtn[l] = v
 		}
 		return
 	}
-	sigma := m.RiseTime / gaussRise
-	R := s.setKernel(sigma, sub)
+	N, R := w.Len(), s.R
 	width := 2*R + 1
-	steps := (N + 2*pad) * sub
-	for j := 0; j < steps; j++ {
-		q, o := j/sub-pad, j%sub
-		ker := s.kernel[o*width : (o+1)*width]
-		drv := s.drive[j*nch : (j+1)*nch]
-		dtn := s.det[j*nlev : (j+1)*nlev]
+	q, o := j/s.sub-s.pad, j%s.sub
+	ker := s.kernel[o*width : (o+1)*width]
+	for c := range drv {
+		drv[c] = 0
+	}
+	copy(dtn, s.errDet)
+	for r := max(-R, -q); r <= R && q+r < N; r++ {
+		k := q + r
+		wt := ker[r+R]
 		for c := range drv {
-			drv[c] = 0
+			drv[c] += s.sample(c, k) * complex(s.scale[c]*wt, 0)
 		}
-		for l := range dtn {
-			dtn[l] = 0
-		}
-		for r := -R; r <= R; r++ {
-			k := q + r
-			if k < 0 || k >= N {
-				continue
-			}
-			wt := ker[r+R]
-			for c := 0; c < nch; c++ {
-				drv[c] += src(c, k) * complex(scale[c]*wt, 0)
-			}
-			for l := 0; l < nlev; l++ {
-				if w.Detuning[l] != nil {
-					dtn[l] += 2 * math.Pi * w.Detuning[l][k] * wt
-				}
+		for l, tr := range w.Detuning {
+			if tr != nil {
+				dtn[l] += 2 * math.Pi * tr[k] * wt
 			}
 		}
 	}
@@ -444,13 +456,6 @@ func (s *Simulator) setKernel(sigma float64, sub int) int {
 	}
 	s.kerSigma, s.kerSub = sigma, sub
 	return R
-}
-
-func grow(b []complex128, n int) []complex128 {
-	if cap(b) < n {
-		return make([]complex128, n)
-	}
-	return b[:n]
 }
 
 func growF(b []float64, n int) []float64 {

@@ -314,10 +314,10 @@ func newGatesCmd() *cobra.Command {
 		Args:    cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			type gateJSON struct {
-				Name        string          `json:"name"`
-				Symbol      string          `json:"symbol"`
-				Aliases     []string        `json:"aliases"`
-				Description string          `json:"description"`
+				Name        string           `json:"name"`
+				Symbol      string           `json:"symbol"`
+				Aliases     []string         `json:"aliases"`
+				Description string           `json:"description"`
 				Matrix      [2][2][2]float64 `json:"matrix"`
 			}
 			var list []gateJSON
