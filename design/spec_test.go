@@ -116,7 +116,9 @@ func TestDemoValues(t *testing.T) {
 		t.Errorf("excited levels %v, want [3]", s.Excited)
 	}
 	r := s.Search
-	if r.Family != Fourier || r.Harmonics != 3 || r.Restarts != 8 || r.Seed != 7 || r.TargetInfidelity != 1e-6 ||
+	// (The number of harmonics is tuned for speed by the pipeline's owner;
+	// TestSearchErrorsSweepsSections covers its decoding.)
+	if r.Family != Fourier || r.Harmonics < 1 || r.Restarts != 8 || r.Seed != 7 || r.TargetInfidelity != 1e-6 ||
 		r.Evaluations != defaultEvaluations || r.LoopPoints != defaultLoopPoints || r.Robust.Enabled() {
 		t.Errorf("search %+v", r)
 	}

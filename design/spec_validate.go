@@ -214,6 +214,13 @@ func (s *Spec) checkScheme(c *checker) bool {
 			}
 		}
 	}
+	if len(c.probs) == n0 {
+		// The engine's own structural check; the checks above are meant to
+		// cover it with better messages, so this is a safety net.
+		if err := sc.Validate(); err != nil {
+			c.bad("scheme", "%v", err)
+		}
+	}
 	return len(c.probs) == n0
 }
 

@@ -136,9 +136,9 @@ func (e *Eigen) Factorize(h *Mat, vals []float64, vecs *Mat) {
 	_, exp := math.Frexp(amax) // amax·2^−exp ∈ [½, 1)
 	if exp != 0 {
 		if exp > -1000 && exp < 1000 {
-			f := complex(math.Ldexp(1, -exp), 0)
-			for i := range a {
-				a[i] *= f
+			f := math.Ldexp(1, -exp)
+			for i, v := range a {
+				a[i] = rscale(f, v)
 			}
 		} else {
 			for i, v := range a {

@@ -143,15 +143,15 @@ func (x *Exponential) pade(a []complex128) (M, N []complex128, s int, ok bool) {
 		switch m {
 		case 3:
 			for i, x := range A2 {
-				T[i] = complex(b[3], 0) * x
-				V[i] = complex(b[2], 0) * x
+				T[i] = rscale(b[3], x)
+				V[i] = rscale(b[2], x)
 			}
 		case 5:
 			mulSq(A4, A2, A2, n)
 			for i, x := range A2 {
 				y := A4[i]
-				T[i] = complex(b[3], 0)*x + complex(b[5], 0)*y
-				V[i] = complex(b[2], 0)*x + complex(b[4], 0)*y
+				T[i] = rscale(b[3], x) + rscale(b[5], y)
+				V[i] = rscale(b[2], x) + rscale(b[4], y)
 			}
 		default:
 			mulSq(A4, A2, A2, n)
@@ -165,11 +165,11 @@ func (x *Exponential) pade(a []complex128) (M, N []complex128, s int, ok bool) {
 			}
 			for i, x := range A2 {
 				y, z, w := A4[i], A6[i], A8[i]
-				T[i] = complex(b[3], 0)*x + complex(b[5], 0)*y + complex(b[7], 0)*z
-				V[i] = complex(b[2], 0)*x + complex(b[4], 0)*y + complex(b[6], 0)*z
+				T[i] = rscale(b[3], x) + rscale(b[5], y) + rscale(b[7], z)
+				V[i] = rscale(b[2], x) + rscale(b[4], y) + rscale(b[6], z)
 				if m == 9 {
-					T[i] += complex(b[9], 0) * w
-					V[i] += complex(b[8], 0) * w
+					T[i] += rscale(b[9], w)
+					V[i] += rscale(b[8], w)
 				}
 			}
 		}
@@ -184,22 +184,22 @@ func (x *Exponential) pade(a []complex128) (M, N []complex128, s int, ok bool) {
 		mulSq(A6, A4, A2, n)
 		// T = A6(b13 A6 + b11 A4 + b9 A2), then the low-order terms.
 		for i := range A8 {
-			A8[i] = complex(b[13], 0)*A6[i] + complex(b[11], 0)*A4[i] + complex(b[9], 0)*A2[i]
+			A8[i] = rscale(b[13], A6[i]) + rscale(b[11], A4[i]) + rscale(b[9], A2[i])
 		}
 		mulSq(T, A6, A8, n)
 		for i := range T {
-			T[i] += complex(b[7], 0)*A6[i] + complex(b[5], 0)*A4[i] + complex(b[3], 0)*A2[i]
+			T[i] += rscale(b[7], A6[i]) + rscale(b[5], A4[i]) + rscale(b[3], A2[i])
 		}
 		for i := 0; i < n; i++ {
 			T[i*n+i] += complex(b[1], 0)
 		}
 		mulSq(U, A, T, n)
 		for i := range A8 {
-			A8[i] = complex(b[12], 0)*A6[i] + complex(b[10], 0)*A4[i] + complex(b[8], 0)*A2[i]
+			A8[i] = rscale(b[12], A6[i]) + rscale(b[10], A4[i]) + rscale(b[8], A2[i])
 		}
 		mulSq(V, A6, A8, n)
 		for i := range V {
-			V[i] += complex(b[6], 0)*A6[i] + complex(b[4], 0)*A4[i] + complex(b[2], 0)*A2[i]
+			V[i] += rscale(b[6], A6[i]) + rscale(b[4], A4[i]) + rscale(b[2], A2[i])
 		}
 		for i := 0; i < n; i++ {
 			V[i*n+i] += complex(b[0], 0)
@@ -244,23 +244,23 @@ func (x *Exponential) padeHermitian(w, B []complex128, norm float64) (M []comple
 	switch m {
 	case 3:
 		for i, y := range B2 {
-			T[i] = complex(-b[3], 0) * y
-			V[i] = complex(-b[2], 0) * y
+			T[i] = rscale(-b[3], y)
+			V[i] = rscale(-b[2], y)
 		}
 	case 5:
 		mulHerm(B4, B2, B2, n)
 		for i, y := range B2 {
 			z := B4[i]
-			T[i] = complex(-b[3], 0)*y + complex(b[5], 0)*z
-			V[i] = complex(-b[2], 0)*y + complex(b[4], 0)*z
+			T[i] = rscale(-b[3], y) + rscale(b[5], z)
+			V[i] = rscale(-b[2], y) + rscale(b[4], z)
 		}
 	case 7:
 		mulHerm(B4, B2, B2, n)
 		mulHerm(B6, B4, B2, n)
 		for i, y := range B2 {
 			z, u := B4[i], B6[i]
-			T[i] = complex(-b[3], 0)*y + complex(b[5], 0)*z + complex(-b[7], 0)*u
-			V[i] = complex(-b[2], 0)*y + complex(b[4], 0)*z + complex(-b[6], 0)*u
+			T[i] = rscale(-b[3], y) + rscale(b[5], z) + rscale(-b[7], u)
+			V[i] = rscale(-b[2], y) + rscale(b[4], z) + rscale(-b[6], u)
 		}
 	case 9:
 		mulHerm(B4, B2, B2, n)
@@ -268,8 +268,8 @@ func (x *Exponential) padeHermitian(w, B []complex128, norm float64) (M []comple
 		mulHerm(B8, B4, B4, n)
 		for i, y := range B2 {
 			z, u, v := B4[i], B6[i], B8[i]
-			T[i] = complex(-b[3], 0)*y + complex(b[5], 0)*z + complex(-b[7], 0)*u + complex(b[9], 0)*v
-			V[i] = complex(-b[2], 0)*y + complex(b[4], 0)*z + complex(-b[6], 0)*u + complex(b[8], 0)*v
+			T[i] = rscale(-b[3], y) + rscale(b[5], z) + rscale(-b[7], u) + rscale(b[9], v)
+			V[i] = rscale(-b[2], y) + rscale(b[4], z) + rscale(-b[6], u) + rscale(b[8], v)
 		}
 	case 13:
 		mulHerm(B4, B2, B2, n)
@@ -278,15 +278,15 @@ func (x *Exponential) padeHermitian(w, B []complex128, norm float64) (M []comple
 		// V = B6(b12 B6 − b10 B4 + b8 B2) − b6 B6 + b4 B4 − b2 B2 + b0.
 		for i, y := range B2 {
 			z, u := B4[i], B6[i]
-			B8[i] = complex(b[13], 0)*u + complex(-b[11], 0)*z + complex(b[9], 0)*y
-			P[i] = complex(b[12], 0)*u + complex(-b[10], 0)*z + complex(b[8], 0)*y
+			B8[i] = rscale(b[13], u) + rscale(-b[11], z) + rscale(b[9], y)
+			P[i] = rscale(b[12], u) + rscale(-b[10], z) + rscale(b[8], y)
 		}
 		mulHerm(T, B6, B8, n)
 		mulHerm(V, B6, P, n)
 		for i, y := range B2 {
 			z, u := B4[i], B6[i]
-			T[i] += complex(-b[7], 0)*u + complex(b[5], 0)*z + complex(-b[3], 0)*y
-			V[i] += complex(-b[6], 0)*u + complex(b[4], 0)*z + complex(-b[2], 0)*y
+			T[i] += rscale(-b[7], u) + rscale(b[5], z) + rscale(-b[3], y)
+			V[i] += rscale(-b[6], u) + rscale(b[4], z) + rscale(-b[2], y)
 		}
 	}
 	for i := 0; i < n; i++ {
@@ -530,6 +530,10 @@ func luSolve4(a, b []complex128) {
 		kb[3] *= iv
 	}
 }
+
+// rscale returns the complex number y scaled by the real c (two real
+// multiplications instead of a complex product).
+func rscale(c float64, y complex128) complex128 { return complex(c*real(y), c*imag(y)) }
 
 // complexExp returns e^z.
 func complexExp(z complex128) complex128 {

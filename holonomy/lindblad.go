@@ -201,7 +201,7 @@ func (l *Lindblad) apply(x []complex128) {
 			f := 1 / float64(k)
 			var tn, an float64
 			for i, v := range next {
-				v = (v + t[i] + complex(l.d[i], 0)*term[i]) * complex(f, 0)
+				v = rscale(f, v+t[i]+rscale(l.d[i], term[i]))
 				next[i] = v
 				a := acc[i] + v
 				acc[i] = a

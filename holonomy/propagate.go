@@ -77,8 +77,9 @@ func (p *Propagator) Step(u, h *Mat, dt float64) {
 	}
 	t := p.tmpFor(u)
 	if norm := norm1Cols(b, n); norm <= padeTheta[4] {
-		// exp(−ih dt) ≈ M⁻¹N: u ← M⁻¹(N u), which for state vectors
-		// (few columns) is cheaper than forming M⁻¹N.
+		// exp(−ih dt) ≈ M⁻¹N (N in p.w): u ← M⁻¹(N u), which for state
+		// vectors (few columns) is cheaper than forming M⁻¹N and for
+		// propagators costs the same.
 		m, _ := p.exp.padeHermitian(p.w.Data, b, norm)
 		Mul(t, p.w, u)
 		luSolve(m, t.Data, n, u.C)

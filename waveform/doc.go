@@ -56,6 +56,15 @@
 // numerator is the norm ‖P_C ∂_tH|n⟩‖) at or below α* with the shortest
 // loop time 2∫c ds, and α falls as 1/T when the duration grows.
 //
+// When the working subspace consists of two non-degenerate clusters (for
+// example both levels of a spin-½, whose holonomy is a pair of Berry
+// phases), their dynamical phase difference would add to the gate. The
+// timing then lengthens the loop and trims the amplitude until that
+// difference, including the second-order adiabatic level shift
+// Σ_n |⟨n|∂_tH|m⟩|²/(E_m − E_n)³, is a whole multiple of 2π on the
+// sampled waveform, so that the gate is the geometric one up to a global
+// phase. With more than two clusters no such matching is attempted.
+//
 // # Cyclic (nonadiabatic) segments
 //
 // A cyclic segment holds a fixed unit drive direction u with the envelope
@@ -77,10 +86,25 @@
 // x = I or Q, with halves rounded away from zero; the drive the DAC emits,
 // and the one Verify propagates, is code·FullScale/(2^(b−1)−1).
 //
+// # Verification
+//
+// Simulate and Simulator.Run propagate the zero-order-hold waveform with
+// holonomy.Propagator.Step (exact per step, unitary), StepDecay when the
+// model has excited-level decay, and holonomy.Lindblad when it has qubit
+// dephasing; an ErrorModel adds amplitude and detuning errors, decay,
+// dephasing and a Gaussian model of the analog bandwidth. Runs of
+// identical samples reuse one step propagator. The figures are the average
+// gate fidelity and leakage of Pedersen, Møller and Mølmer (Phys. Lett. A
+// 367, 47 (2007)), the peak population of the non-computational and of the
+// excited levels for each computational input, and optional decimated
+// population traces.
+//
 // # Files
 //
 // File.WriteJSON writes the self-contained waveform file described by
 // schemas.Waveform; WriteCSV and WriteNPY export the samples; LoopFile
 // holds a loop as sampled unit-scale points (schemas.Loop). ReadWaveform
-// and ReadLoop validate against the schema first, then check the contents.
+// and ReadLoop bound the file size, validate against the schema, then check
+// the contents; their errors are *FileError values naming the file and a
+// JSON pointer. Writers take an io.Writer and never touch the file system.
 package waveform

@@ -165,9 +165,29 @@ func TestWaveformRoundTrip(t *testing.T) {
 		t.Fatal(err)
 	}
 	fv := f.Verification
+	if !v.Same(fv) || !v.Same(g.Verification) {
+		t.Error("re-verification is not the Same as the recorded one")
+	}
 	if v.Fidelity != fv.Fidelity || v.Leakage != fv.Leakage || v.Adiabaticity != fv.Adiabaticity ||
 		!reflect.DeepEqual(v.PeakAux, fv.PeakAux) || !reflect.DeepEqual(v.Checks, fv.Checks) || !reflect.DeepEqual(v.Checks, g.Verification.Checks) {
 		t.Errorf("re-verification differs: F %v vs %v, α %v vs %v", v.Fidelity, fv.Fidelity, v.Adiabaticity, fv.Adiabaticity)
+	}
+}
+
+// A cyclic gate has no adiabaticity (NaN); Same still matches it.
+func TestSameWithoutAdiabaticity(t *testing.T) {
+	f := testFile(t, lambdaPlan(math.Pi/4, 0, hadamard()), testHardware(2, 10e6), ErrorModel{})
+	g, err := ReadWaveform(bytes.NewReader(encode(t, f)), "lambda.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	v := mustVerify(t, g.Waveform, g.Verification.Model)
+	if !math.IsNaN(v.Adiabaticity) || !v.Same(g.Verification) || !v.Same(f.Verification) {
+		t.Errorf("re-verification of a cyclic gate differs")
+	}
+	v.Fidelity = math.Nextafter(v.Fidelity, 0)
+	if v.Same(f.Verification) {
+		t.Error("Same ignores a one-ulp change of the fidelity")
 	}
 }
 

@@ -217,8 +217,13 @@ func parseScheme(name, ptr string, d *schemeDoc) (*holonomy.Scheme, []float64, e
 		}
 		return k, nil
 	}
+	chans := map[string]bool{}
 	for c, ch := range d.Channels {
 		p := fmt.Sprintf("%s/channels/%d", ptr, c)
+		if chans[ch.Name] {
+			return nil, nil, ferr(name, p+"/name", "channel name %q is used twice", ch.Name)
+		}
+		chans[ch.Name] = true
 		lo, err := level(p+"/lower", ch.Lower)
 		if err != nil {
 			return nil, nil, err

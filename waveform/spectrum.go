@@ -160,19 +160,3 @@ func (sp *spectrum) coupling(dh *holonomy.Mat, thr float64) (kappa, gap float64)
 	}
 	return kappa, gap
 }
-
-// trackGap returns the smallest distance between a working cluster and any
-// state outside it, for the current eigendecomposition and the clusters
-// chosen earlier (tracked by their places in the ascending spectrum).
-func (sp *spectrum) trackGap() float64 {
-	gap := math.Inf(1)
-	for _, r := range sp.work {
-		if r[0] > 0 {
-			gap = math.Min(gap, sp.vals[r[0]]-sp.vals[r[0]-1])
-		}
-		if r[1] < sp.n {
-			gap = math.Min(gap, sp.vals[r[1]]-sp.vals[r[1]-1])
-		}
-	}
-	return gap
-}

@@ -34,6 +34,44 @@ func (v *Verification) Pass() bool {
 	return true
 }
 
+// Same reports whether v and o hold the same model, figures and checks,
+// bit for bit (a NaN adiabaticity equals a NaN). The verify command uses
+// it to confirm that a waveform file reproduces its recorded results.
+func (v *Verification) Same(o *Verification) bool {
+	eq := func(a, b float64) bool {
+		return math.Float64bits(a) == math.Float64bits(b) || (math.IsNaN(a) && math.IsNaN(b))
+	}
+	eqs := func(a, b []float64) bool {
+		if len(a) != len(b) {
+			return false
+		}
+		for i := range a {
+			if !eq(a[i], b[i]) {
+				return false
+			}
+		}
+		return true
+	}
+	m, n := v.Model, o.Model
+	if !eq(m.AmplitudeError, n.AmplitudeError) || !eqs(m.ChannelErrors, n.ChannelErrors) || !eq(m.OnePhotonDetuning, n.OnePhotonDetuning) ||
+		!eq(m.TwoPhotonDetuning, n.TwoPhotonDetuning) || !eq(m.Decay, n.Decay) || !eq(m.Dephasing, n.Dephasing) ||
+		!eq(m.RiseTime, n.RiseTime) || m.SubSteps != n.SubSteps || m.Unquantized != n.Unquantized {
+		return false
+	}
+	if !eq(v.Fidelity, o.Fidelity) || !eq(v.Leakage, o.Leakage) || !eqs(v.PeakAux, o.PeakAux) ||
+		!eqs(v.PeakExcited, o.PeakExcited) || !eq(v.Adiabaticity, o.Adiabaticity) || len(v.Checks) != len(o.Checks) {
+		return false
+	}
+	for i, c := range v.Checks {
+		d := o.Checks[i]
+		if c.Name != d.Name || !eq(c.Value, d.Value) || !eq(c.Limit, d.Limit) || !eq(c.Margin, d.Margin) ||
+			c.Unit != d.Unit || c.Lower != d.Lower || c.Pass != d.Pass {
+			return false
+		}
+	}
+	return true
+}
+
 // Failed returns the checks that fail.
 func (v *Verification) Failed() []Check {
 	var out []Check
