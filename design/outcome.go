@@ -87,6 +87,9 @@ type Figures struct {
 	// PeakAux is, per computational input, the largest population
 	// outside the qubit levels.
 	PeakAux []float64 `json:"peak_aux_population"`
+	// PeakExcited is, per computational input, the largest population of
+	// the excited levels (the ones that decay).
+	PeakExcited []float64 `json:"peak_excited_population"`
 	// Adiabaticity is max_t |⟨m|∂_tH|n⟩|/(E_m − E_n)² (null without
 	// adiabatic segments).
 	Adiabaticity *float64 `json:"adiabaticity"`
@@ -178,6 +181,7 @@ func figures(v *waveform.Verification) Figures {
 		Fidelity:     v.Fidelity,
 		Leakage:      v.Leakage,
 		PeakAux:      append([]float64(nil), v.PeakAux...),
+		PeakExcited:  append([]float64(nil), v.PeakExcited...),
 		Adiabaticity: finitePtr(v.Adiabaticity),
 	}
 }

@@ -4,9 +4,7 @@ import (
 	"context"
 	"fmt"
 	"io"
-	"math"
 	"os"
-	"slices"
 
 	"github.com/loopgate/loopgate/waveform"
 )
@@ -117,7 +115,7 @@ func VerifyFile(ctx context.Context, path string, opt VerifyOptions) (*Outcome, 
 	if err != nil {
 		return nil, fmt.Errorf("waveform %s: %w", path, err)
 	}
-	same := sameVerification(again, f.Verification)
+	same := again.Same(f.Verification)
 	o := newOutcome("verify", path, title, target, w, a)
 	o.Seed, o.SpecHash = f.Seed, f.SpecSHA256
 	o.Reproduced = &same
@@ -164,24 +162,6 @@ func openInput(path, what string) (*os.File, error) {
 		return nil, &InputError{Err: fmt.Errorf("%s %s: %w", what, path, unwrapPath(err))}
 	}
 	return r, nil
-}
-
-// sameVerification reports whether two verifications agree bit for bit.
-func sameVerification(a, b *waveform.Verification) bool {
-	eq := func(x, y float64) bool { return x == y || (math.IsNaN(x) && math.IsNaN(y)) }
-	if !eq(a.Fidelity, b.Fidelity) || !eq(a.Leakage, b.Leakage) || !eq(a.Adiabaticity, b.Adiabaticity) {
-		return false
-	}
-	if !slices.Equal(a.PeakAux, b.PeakAux) || len(a.Checks) != len(b.Checks) {
-		return false
-	}
-	for i, c := range a.Checks {
-		d := b.Checks[i]
-		if c.Name != d.Name || !eq(c.Value, d.Value) || !eq(c.Limit, d.Limit) || c.Pass != d.Pass {
-			return false
-		}
-	}
-	return true
 }
 
 // defaultSweeps is used for waveform files without an embedded spec.

@@ -80,12 +80,12 @@ func printOutcome(w io.Writer, o *design.Outcome) {
 
 func printFigures(w io.Writer, label string, f design.Figures) {
 	fmt.Fprintf(w, "%-11s fidelity %.6f, leakage %.2e", label, f.Fidelity, f.Leakage)
-	if len(f.PeakAux) > 0 {
+	if len(f.PeakExcited) > 0 {
 		peak := 0.0
-		for _, p := range f.PeakAux {
+		for _, p := range f.PeakExcited {
 			peak = math.Max(peak, p)
 		}
-		fmt.Fprintf(w, ", peak auxiliary population %.2e", peak)
+		fmt.Fprintf(w, ", peak excited population %.2e", peak)
 	}
 	if f.Adiabaticity != nil {
 		fmt.Fprintf(w, ", adiabaticity %.3g", *f.Adiabaticity)
