@@ -7,6 +7,7 @@ import (
 	"io"
 	"math"
 	"path/filepath"
+	"strings"
 
 	"github.com/loopgate/loopgate/holonomy"
 	"github.com/loopgate/loopgate/optimize"
@@ -90,6 +91,9 @@ func Design(ctx context.Context, spec *Spec, opt Options) (*Outcome, error) {
 	}
 	logf(opt.Log, "sampled %d samples (%.4g s) at %s", w.Len(), w.Duration(), FormatQuantity(w.Hardware.SampleRate, SampleRate))
 
+	if err := hardwareError(spec, w); err != nil {
+		return nil, err
+	}
 	a, err := analyse(ctx, w, errorModelOf(spec), sweepsOf(spec), !opt.NoSweeps, opt.Progress, opt.Log)
 	if err != nil {
 		return nil, err
@@ -125,15 +129,10 @@ func Design(ctx context.Context, spec *Spec, opt Options) (*Outcome, error) {
 		data := reportData(out, w, sol.plan, a, spec.Preset)
 		writers = append(writers, func(wr io.Writer) error { return writeReport(wr, data) })
 	}
-	for i, write := range writers {
-		if err := ctx.Err(); err != nil {
-			return nil, err
-		}
-		if err := WriteAtomic(paths[i], opt.Overwrite, write); err != nil {
-			return nil, &OutputError{Err: err}
-		}
-		out.Files = append(out.Files, paths[i])
+	if err := writeAll(ctx, paths, opt.Overwrite, writers); err != nil {
+		return nil, err
 	}
+	out.Files = append(out.Files, paths...)
 	logf(opt.Log, "wrote %d files to %s", len(out.Files), opt.OutDir)
 	return out, out.err()
 }
@@ -229,6 +228,56 @@ func timeLoop(spec *Spec, plan *waveform.Plan, log io.Writer) (*waveform.Wavefor
 	return firstBuilt, nil
 }
 
+// hardwareError refuses a waveform that breaks a hardware limit: no file
+// is written for it (a waveform that would overdrive the hardware is worse
+// than none). The error names every broken limit with the value needed,
+// the limit and the excess.
+func hardwareError(spec *Spec, w *waveform.Waveform) error {
+	var bad []string
+	for _, c := range w.HardwareChecks() {
+		if !c.Pass {
+			bad = append(bad, describeCheck(c))
+		}
+	}
+	if len(bad) == 0 {
+		return nil
+	}
+	return &InfeasibleError{Err: fmt.Errorf("spec %s: the gate does not fit the hardware limits (no files written): %s",
+		spec.File, strings.Join(bad, "; "))}
+}
+
+// describeCheck says in words what a failed check needs and by how much it
+// misses the limit.
+func describeCheck(c waveform.Check) string {
+	rel, word := "above the largest allowed", "over"
+	if c.Lower {
+		rel, word = "below the smallest allowed", "short"
+	}
+	return fmt.Sprintf("%s is %s, %s %s (%s by %s)", c.Name, FormatSI(c.Value, c.Unit), rel, FormatSI(c.Limit, c.Unit), word, FormatSI(math.Abs(c.Margin), c.Unit))
+}
+
+// FormatSI formats v with four significant digits and an SI prefix on unit
+// ("96 ns", "20 MHz"); with an empty unit it formats the plain number.
+func FormatSI(v float64, unit string) string {
+	if unit == "" {
+		return fmt.Sprintf("%.6g", v)
+	}
+	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
+		return fmt.Sprintf("%g %s", v, unit)
+	}
+	prefixes := []struct {
+		f float64
+		p string
+	}{{1e12, "T"}, {1e9, "G"}, {1e6, "M"}, {1e3, "k"}, {1, ""}, {1e-3, "m"}, {1e-6, "µ"}, {1e-9, "n"}, {1e-12, "p"}}
+	a := math.Abs(v)
+	for _, p := range prefixes {
+		if a >= p.f*0.99995 {
+			return fmt.Sprintf("%.4g %s%s", v/p.f, p.p, unit)
+		}
+	}
+	return fmt.Sprintf("%.4g %s", v, unit)
+}
+
 // hardwareOK reports whether every hardware check of v passes (the
 // fidelity and adiabaticity goals are not hardware checks).
 func hardwareOK(v *waveform.Verification) bool {
@@ -238,6 +287,41 @@ func hardwareOK(v *waveform.Verification) bool {
 		}
 	}
 	return true
+}
+
+// writeAll writes every output to a temporary file in its folder first
+// and renames them into place only when all were written and the run was
+// not interrupted, so an error or Ctrl-C leaves none of them (and a kill
+// leaves at most hidden temporary files, which CleanTemps removes).
+func writeAll(ctx context.Context, paths []string, overwrite bool, writers []func(io.Writer) error) error {
+	files := make([]*AtomicFile, 0, len(paths))
+	defer func() {
+		for _, f := range files {
+			f.Abort()
+		}
+	}()
+	for i, write := range writers {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		f, err := CreateAtomic(paths[i], overwrite)
+		if err != nil {
+			return &OutputError{Err: err}
+		}
+		files = append(files, f)
+		if err := write(f); err != nil {
+			return fmt.Errorf("output %s: %w", paths[i], err)
+		}
+	}
+	if err := ctx.Err(); err != nil {
+		return err
+	}
+	for i, f := range files {
+		if err := f.Commit(); err != nil {
+			return &OutputError{Err: fmt.Errorf("output %s: %w", paths[i], err)}
+		}
+	}
+	return nil
 }
 
 // solution is what the search stage hands on.

@@ -276,3 +276,33 @@ func BenchmarkDesignTripodSX(b *testing.B) { benchDesign(b, "demo-tripod-sx.yaml
 func BenchmarkDesignLambdaH(b *testing.B)  { benchDesign(b, "demo-lambda-hadamard.yaml") }
 func BenchmarkDesignLambdaT(b *testing.B)  { benchDesign(b, "demo-lambda-t.yaml") }
 func BenchmarkDesignLambdaSX(b *testing.B) { benchDesign(b, "demo-lambda-sx.yaml") }
+
+// TestDesignHardwareImpossible shortens the longest allowed gate below
+// what a cyclic Λ gate needs at the peak Rabi frequency (area 2π, Sjöqvist
+// et al., New J. Phys. 14, 103035 (2012)): the design must refuse, name
+// the limit and write nothing.
+func TestDesignHardwareImpossible(t *testing.T) {
+	src, err := os.ReadFile(filepath.Join("..", "testdata", "demo-lambda-hadamard.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := string(src)
+	i := strings.Index(s, "max_duration:")
+	end := strings.Index(s[i:], "\n")
+	s = s[:i] + `max_duration: "60 ns"` + s[i+end:]
+	s = strings.Replace(s, `min_duration: "50 ns"`, `min_duration: "10 ns"`, 1)
+	spec, err := ParseSpec([]byte(s), "short.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	_, err = Design(context.Background(), spec, Options{OutDir: dir, NoSweeps: true})
+	var ie *InfeasibleError
+	if !errors.As(err, &ie) || !strings.Contains(err.Error(), "duration") || !strings.Contains(err.Error(), "60 ns") {
+		t.Fatalf("got %v; want an infeasible error naming the duration limit", err)
+	}
+	t.Log(err)
+	if entries, _ := os.ReadDir(dir); len(entries) != 0 {
+		t.Errorf("refused design left %d files", len(entries))
+	}
+}

@@ -147,19 +147,4 @@ func num(v float64, unit string) string {
 }
 
 // si formats v with an SI prefix.
-func si(v float64, unit string) string {
-	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
-		return fmt.Sprintf("%g %s", v, unit)
-	}
-	prefixes := []struct {
-		f float64
-		p string
-	}{{1e12, "T"}, {1e9, "G"}, {1e6, "M"}, {1e3, "k"}, {1, ""}, {1e-3, "m"}, {1e-6, "µ"}, {1e-9, "n"}, {1e-12, "p"}}
-	a := math.Abs(v)
-	for _, p := range prefixes {
-		if a >= p.f*0.9995 {
-			return fmt.Sprintf("%.4g %s%s", v/p.f, p.p, unit)
-		}
-	}
-	return fmt.Sprintf("%.3g %s", v, unit)
-}
+func si(v float64, unit string) string { return design.FormatSI(v, unit) }
