@@ -526,9 +526,13 @@ func errorModelOf(spec *Spec) waveform.ErrorModel {
 		Dephasing:         e.Dephasing,
 		Unquantized:       !e.Quantise,
 	}
-	if e.Filter != NoFilter {
-		m.RiseTime = e.RiseTime
+	switch e.Filter {
+	case GaussianFilter:
+		m.RiseTime, m.Filter = e.RiseTime, waveform.GaussianFilter
+	case FirstOrderFilter:
+		m.RiseTime, m.Filter = e.RiseTime, waveform.FirstOrderFilter
 	}
+	m.PhaseStep = e.PhaseStep
 	common := true
 	for _, a := range e.Amplitude {
 		if a != e.Amplitude[0] {

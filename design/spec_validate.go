@@ -470,8 +470,8 @@ func (s *Spec) checkErrors(c *checker, nch int) {
 	default:
 		c.bad("errors.filter", "expected none, gaussian or first-order")
 	}
-	if !finite(e.PhaseStep) || e.PhaseStep < 0 || e.PhaseStep >= 2*math.Pi {
-		c.bad("errors.phase_step", "must be from 0 to below 360 deg; found %s", showValue(e.PhaseStep, Angle))
+	if !finite(e.PhaseStep) || e.PhaseStep < 0 || e.PhaseStep > math.Pi {
+		c.bad("errors.phase_step", "must be from 0 to 180 deg; found %s", showValue(e.PhaseStep, Angle))
 	}
 }
 

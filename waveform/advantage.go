@@ -119,6 +119,10 @@ type Dynamical struct {
 // String describes the dynamical gate in words, for reports.
 func (d *Dynamical) String() string {
 	w := d.Waveform
+	if w.Len() == 0 {
+		return fmt.Sprintf("no pulse: the target is diagonal and is a virtual z rotation by %.4gπ on the %s–%s qubit",
+			inPi(d.Pulse.ZAngle), w.Scheme.Levels[0].Name, w.Scheme.Levels[1].Name)
+	}
 	return fmt.Sprintf("%s on the %s–%s transition driven directly (sin² envelope, peak Rabi limit %.4g MHz, %.4g GS/s, %d samples)",
 		d.Pulse, w.Scheme.Levels[0].Name, w.Scheme.Levels[1].Name,
 		w.Hardware.MaxRabi[0]/1e6, w.Hardware.SampleRate/1e9, w.Len())

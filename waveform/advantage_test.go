@@ -101,6 +101,11 @@ func TestAdvantageDynamicalGate(t *testing.T) {
 			if dw.Len() != 0 {
 				t.Errorf("T: diagonal target needs no pulse, got %d samples", dw.Len())
 			}
+			out, err := Simulate(dw, ErrorModel{AmplitudeError: 0.2, TwoPhotonDetuning: 1e6})
+			if err != nil || math.Abs(1-out.Fidelity) > 1e-15 {
+				t.Errorf("T: frame change alone should be exact: %v, %v", out, err)
+			}
+			t.Logf("T: %v", d)
 		} else if peak := d.Waveform.Spans[0].Amplitude; peak > geo.Hardware.MaxRabi[0]*(1+1e-12) {
 			t.Errorf("%s: peak Rabi %v Hz above the limit", name, peak)
 		}

@@ -17,7 +17,8 @@ func TestRunAllocatesNothing(t *testing.T) {
 	w := tripod2000(t)
 	s := NewSimulator(w)
 	var out Outcome
-	for _, m := range []ErrorModel{{}, {AmplitudeError: 0.01, TwoPhotonDetuning: 1e4}, {Decay: 1e5}, {RiseTime: 3e-9}} {
+	for _, m := range []ErrorModel{{}, {AmplitudeError: 0.01, TwoPhotonDetuning: 1e4}, {Decay: 1e5}, {RiseTime: 3e-9},
+		{RiseTime: 3e-9, Filter: FirstOrderFilter}, {PhaseStep: 2 * math.Pi / 256}, {RiseTime: 3e-9, Filter: FirstOrderFilter, PhaseStep: 2 * math.Pi / 256}} {
 		if err := s.Run(m, &out); err != nil {
 			t.Fatal(err)
 		}
@@ -44,6 +45,37 @@ func BenchmarkSimulateTripod2000(b *testing.B) {
 	}
 	b.ReportMetric(float64(w.Len()), "samples")
 	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(w.Len()), "ns/sample")
+}
+
+// BenchmarkSimulateTripod2000FirstOrder adds a first-order filter of 3 ns
+// rise time (8 sub-steps per sample, kernel reach 27.6τ) and a drive-phase
+// resolution of 2π/256.
+func BenchmarkSimulateTripod2000FirstOrder(b *testing.B) {
+	w := tripod2000(b)
+	s := NewSimulator(w)
+	var out Outcome
+	m := ErrorModel{RiseTime: 3e-9, Filter: FirstOrderFilter, PhaseStep: 2 * math.Pi / 256}
+	s.Run(m, &out)
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		s.Run(m, &out)
+	}
+}
+
+// BenchmarkSimulateTripod2000Gaussian is the same with the Gaussian
+// filter of 3 ns rise time, for comparison.
+func BenchmarkSimulateTripod2000Gaussian(b *testing.B) {
+	w := tripod2000(b)
+	s := NewSimulator(w)
+	var out Outcome
+	m := ErrorModel{RiseTime: 3e-9, PhaseStep: 2 * math.Pi / 256}
+	s.Run(m, &out)
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		s.Run(m, &out)
+	}
 }
 
 // BenchmarkSimulateTripod2000Decay adds excited-level decay

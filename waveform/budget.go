@@ -3,6 +3,7 @@ package waveform
 import (
 	"context"
 	"fmt"
+	"math"
 	"strings"
 )
 
@@ -43,9 +44,10 @@ type BudgetRow struct {
 //     of Pedersen, Møller and Mølmer (Phys. Lett. A 367, 47 (2007)),
 //     because |Tr M|² ≤ d·Tr(M†M).
 //   - loss (decay Γ), dephasing (γ_φ), quantisation (DAC codes instead of
-//     unquantised samples), bandwidth (the Gaussian low-pass of
-//     ErrorModel.RiseTime), amplitude error (common and per channel),
-//     one-photon detuning and two-photon detuning: each is the ideal model
+//     unquantised samples), phase resolution (ErrorModel.PhaseStep),
+//     bandwidth (the low-pass of ErrorModel.RiseTime and Filter),
+//     amplitude error (common and per channel), one-photon detuning and
+//     two-photon detuning: each is the ideal model
 //     with that one term of m switched on, and the line is the increase
 //     of 1 − F over the ideal line. A term that m does not contain (zero
 //     rate, zero error, Unquantized set) has no line.
@@ -75,9 +77,12 @@ func Budget(ctx context.Context, w *Waveform, m ErrorModel, opt *SweepOptions) (
 	add(!m.Unquantized, "quantisation (DAC)",
 		fmt.Sprintf("drive from the %d-bit DAC codes instead of the unquantised samples; alone on the ideal model", w.Hardware.DACBits),
 		func(e *ErrorModel) { e.Unquantized = false })
+	add(m.PhaseStep > 0, "phase resolution",
+		fmt.Sprintf("drive phases rounded to multiples of %.4g rad (%.4g°); alone on the ideal model", m.PhaseStep, m.PhaseStep*180/math.Pi),
+		func(e *ErrorModel) { e.PhaseStep = m.PhaseStep })
 	add(m.RiseTime > 0, "bandwidth (low-pass)",
-		fmt.Sprintf("Gaussian low-pass, 10–90%% rise time %.4g ns, %d sub-steps per sample; alone on the ideal model", m.RiseTime*1e9, subSteps(m.SubSteps)),
-		func(e *ErrorModel) { e.RiseTime, e.SubSteps = m.RiseTime, m.SubSteps })
+		fmt.Sprintf("%s low-pass, 10–90%% rise time %.4g ns, %d sub-steps per sample; alone on the ideal model", m.Filter, m.RiseTime*1e9, subSteps(m.SubSteps)),
+		func(e *ErrorModel) { e.RiseTime, e.Filter, e.SubSteps = m.RiseTime, m.Filter, m.SubSteps })
 	add(m.AmplitudeError != 0 || anyNonZero(m.ChannelErrors), "amplitude error",
 		amplitudeNote(w, m),
 		func(e *ErrorModel) { e.AmplitudeError, e.ChannelErrors = m.AmplitudeError, m.ChannelErrors })

@@ -12,7 +12,8 @@ import (
 // the closed form of TestAdvantageLambdaAreaErrorQuadratic, and the total.
 func TestBudgetLines(t *testing.T) {
 	w := rbLambda(t, math.Pi/2, 0)
-	m := ErrorModel{AmplitudeError: 0.01, TwoPhotonDetuning: 20e3, Decay: 1e5, Dephasing: 2e3, RiseTime: 1.5e-9}
+	m := ErrorModel{AmplitudeError: 0.01, TwoPhotonDetuning: 20e3, Decay: 1e5, Dephasing: 2e3, RiseTime: 1.5e-9,
+		Filter: FirstOrderFilter, PhaseStep: 2 * math.Pi / 1024}
 	rows, err := Budget(context.Background(), w, m, &SweepOptions{Workers: 3})
 	if err != nil {
 		t.Fatal(err)
@@ -21,7 +22,7 @@ func TestBudgetLines(t *testing.T) {
 		t.Logf("%-22s %11.4g %11.4g  %s", r.Term, r.Infidelity, r.Alone, r.Note)
 	}
 	wantTerms := []string{"ideal waveform", "leakage", "loss (decay Γ)", "dephasing (γ_φ)", "quantisation (DAC)",
-		"bandwidth (low-pass)", "amplitude error", "two-photon detuning", "total"}
+		"phase resolution", "bandwidth (low-pass)", "amplitude error", "two-photon detuning", "total"}
 	if len(rows) != len(wantTerms) {
 		t.Fatalf("%d lines, want %d", len(rows), len(wantTerms))
 	}
@@ -46,7 +47,8 @@ func TestBudgetLines(t *testing.T) {
 	set("loss (decay Γ)", func(e *ErrorModel) { e.Decay = m.Decay })
 	set("dephasing (γ_φ)", func(e *ErrorModel) { e.Dephasing = m.Dephasing })
 	set("quantisation (DAC)", func(e *ErrorModel) { e.Unquantized = false })
-	set("bandwidth (low-pass)", func(e *ErrorModel) { e.RiseTime = m.RiseTime })
+	set("phase resolution", func(e *ErrorModel) { e.PhaseStep = m.PhaseStep })
+	set("bandwidth (low-pass)", func(e *ErrorModel) { e.RiseTime, e.Filter = m.RiseTime, m.Filter })
 	set("amplitude error", func(e *ErrorModel) { e.AmplitudeError = m.AmplitudeError })
 	set("two-photon detuning", func(e *ErrorModel) { e.TwoPhotonDetuning = m.TwoPhotonDetuning })
 	alone["total"] = m
@@ -76,7 +78,7 @@ func TestBudgetLines(t *testing.T) {
 	// Amplitude line: 1 − F = (1 − c)(2 + c)/3, c = cos(πε), on top of an
 	// ideal error of rounding size.
 	c := math.Cos(math.Pi * m.AmplitudeError)
-	if got, want := rows[6].Alone, (1-c)*(2+c)/3; math.Abs(got-want) > 1e-10 {
+	if got, want := rows[7].Alone, (1-c)*(2+c)/3; math.Abs(got-want) > 1e-10 {
 		t.Errorf("amplitude line %.8g, closed form %.8g", got, want)
 	}
 	if !strings.Contains(rows[len(rows)-1].Note, "sum of the separate lines") {

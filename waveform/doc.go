@@ -92,7 +92,8 @@
 // holonomy.Propagator.Step (exact per step, unitary), StepDecay when the
 // model has excited-level decay, and holonomy.Lindblad when it has qubit
 // dephasing; an ErrorModel adds amplitude and detuning errors, decay,
-// dephasing and a Gaussian model of the analog bandwidth. Runs of
+// dephasing, a Gaussian or first-order low-pass model of the analog
+// bandwidth and a finite drive-phase resolution. Runs of
 // identical samples reuse one step propagator. The figures are the average
 // gate fidelity and leakage of Pedersen, Møller and Mølmer (Phys. Lett. A
 // 367, 47 (2007)), the peak population of the non-computational and of the

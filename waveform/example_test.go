@@ -90,7 +90,7 @@ func ExampleVerify() {
 		fmt.Println(ch.Name, ch.Pass)
 	}
 	// Output:
-	// duration 3.58 µs, adiabaticity 0.050 (target 0.05)
+	// duration 3.97 µs, adiabaticity 0.045 (target 0.05)
 	// fidelity 1.0000
 	// fidelity true
 	// adiabaticity true

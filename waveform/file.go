@@ -167,9 +167,14 @@ type modelDoc struct {
 	TwoPhotonDetuning float64   `json:"two_photon_detuning_hz"`
 	Decay             float64   `json:"decay_per_s"`
 	Dephasing         float64   `json:"dephasing_per_s"`
-	RiseTime          float64   `json:"rise_time_s"`
-	SubSteps          int       `json:"sub_steps"`
-	Quantized         bool      `json:"quantized"`
+	// Filter and PhaseStep are optional when reading (files written
+	// before they existed): "" reads as gaussian with a rise time and
+	// none without, an absent phase step as 0. They are always written.
+	Filter    string  `json:"filter"`
+	RiseTime  float64 `json:"rise_time_s"`
+	SubSteps  int     `json:"sub_steps"`
+	PhaseStep float64 `json:"phase_step_rad"`
+	Quantized bool    `json:"quantized"`
 }
 
 type checkDoc struct {
@@ -269,7 +274,8 @@ func (f *File) doc() (*waveDoc, error) {
 		Model: modelDoc{
 			AmplitudeError: m.AmplitudeError, ChannelErrors: orEmpty(m.ChannelErrors),
 			OnePhotonDetuning: m.OnePhotonDetuning, TwoPhotonDetuning: m.TwoPhotonDetuning,
-			Decay: m.Decay, Dephasing: m.Dephasing, RiseTime: m.RiseTime, SubSteps: m.SubSteps, Quantized: !m.Unquantized,
+			Decay: m.Decay, Dephasing: m.Dephasing, Filter: m.filterName(), RiseTime: m.RiseTime, SubSteps: m.SubSteps,
+			PhaseStep: m.PhaseStep, Quantized: !m.Unquantized,
 		},
 		Fidelity: v.Fidelity, Leakage: v.Leakage,
 		PeakAux: orEmpty(v.PeakAux), PeakExcited: orEmpty(v.PeakExcited),

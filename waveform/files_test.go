@@ -109,9 +109,12 @@ func described(schema []byte, ref string) bool {
 func TestWrittenFilesValidate(t *testing.T) {
 	full := ErrorModel{AmplitudeError: 0.01, ChannelErrors: []float64{0.01, -0.02, 0}, OnePhotonDetuning: 1e5, TwoPhotonDetuning: 1e3,
 		Decay: 1e4, Dephasing: 1e3, RiseTime: 2e-9, SubSteps: 4}
+	firstOrder := full
+	firstOrder.Filter, firstOrder.PhaseStep = FirstOrderFilter, math.Pi
 	files := []*File{
 		testFile(t, tripodPlan(math.Pi/4, 0.05), testHardware(3, 10e6), ErrorModel{}),
 		testFile(t, tripodPlan(math.Pi/4, 0.05), testHardware(3, 10e6), full),
+		testFile(t, tripodPlan(math.Pi/4, 0.05), testHardware(3, 10e6), firstOrder),
 		testFile(t, lambdaPlan(math.Pi/4, 0, hadamard()), testHardware(2, 10e6), ErrorModel{}),
 	}
 	for _, f := range files {
@@ -171,6 +174,106 @@ func TestWaveformRoundTrip(t *testing.T) {
 	if v.Fidelity != fv.Fidelity || v.Leakage != fv.Leakage || v.Adiabaticity != fv.Adiabaticity ||
 		!reflect.DeepEqual(v.PeakAux, fv.PeakAux) || !reflect.DeepEqual(v.Checks, fv.Checks) || !reflect.DeepEqual(v.Checks, g.Verification.Checks) {
 		t.Errorf("re-verification differs: F %v vs %v, α %v vs %v", v.Fidelity, fv.Fidelity, v.Adiabaticity, fv.Adiabaticity)
+	}
+}
+
+// The filter kind and the phase step round-trip: the file names the
+// filter ("none" without a rise time, whatever the kind), write → read →
+// write keeps every byte, the model read back is the one written, and
+// re-verifying it reproduces the recorded figures bit for bit.
+func TestModelFilterAndPhaseStepRoundTrip(t *testing.T) {
+	for _, c := range []struct {
+		m            ErrorModel
+		filter, step string
+	}{
+		{ErrorModel{}, `"filter": "none"`, `"phase_step_rad": 0,`},
+		{ErrorModel{Filter: FirstOrderFilter}, `"filter": "none"`, `"phase_step_rad": 0,`},
+		{ErrorModel{RiseTime: 2e-9, SubSteps: 4}, `"filter": "gaussian"`, `"phase_step_rad": 0,`},
+		{ErrorModel{Filter: FirstOrderFilter, RiseTime: 2e-9, PhaseStep: 2 * math.Pi / 1024, TwoPhotonDetuning: 1e4},
+			`"filter": "first-order"`, `"phase_step_rad": 0.006135923151542565,`},
+	} {
+		f := testFile(t, lambdaPlan(math.Pi/3, 0.7, nDotSigma(math.Pi/3, 0.7)), testHardware(2, 10e6), c.m)
+		b1 := encode(t, f)
+		if !bytes.Contains(b1, []byte(c.filter)) || !bytes.Contains(b1, []byte(c.step)) {
+			t.Errorf("model %+v: file lacks %s or %s", c.m, c.filter, c.step)
+		}
+		g, err := ReadWaveform(bytes.NewReader(b1), "model.json")
+		if err != nil {
+			t.Fatal(err)
+		}
+		if b2 := encode(t, g); !bytes.Equal(b1, b2) {
+			t.Errorf("model %+v: write → read → write changed the bytes", c.m)
+		}
+		gm := g.Verification.Model
+		if gm.filterName() != c.m.filterName() || gm.RiseTime != c.m.RiseTime || gm.PhaseStep != c.m.PhaseStep || gm.SubSteps != c.m.SubSteps {
+			t.Errorf("model %+v read back as %+v", c.m, gm)
+		}
+		v := mustVerify(t, g.Waveform, gm)
+		if !v.Same(f.Verification) || !v.Same(g.Verification) {
+			t.Errorf("model %+v: re-verification differs (F %.17g vs %.17g)", c.m, v.Fidelity, f.Verification.Fidelity)
+		}
+	}
+}
+
+// Files written before the filter and phase-step fields existed still
+// read: no filter means gaussian with a rise time and none without, no
+// phase step means 0, and the recorded figures are reproduced.
+func TestModelWithoutFilterFields(t *testing.T) {
+	for _, m := range []ErrorModel{{}, {RiseTime: 2e-9}} {
+		f := testFile(t, lambdaPlan(math.Pi/4, 0, hadamard()), testHardware(2, 10e6), m)
+		doc := string(encode(t, f))
+		old := doc
+		for _, field := range []string{`"filter"`, `"phase_step_rad"`} {
+			i := strings.Index(doc, field)
+			j := strings.Index(doc[i:], "\n")
+			k := strings.LastIndex(doc[:i], "\n")
+			doc = doc[:k] + doc[i+j:]
+		}
+		if strings.Contains(doc, `"filter"`) || strings.Contains(doc, `"phase_step_rad"`) || len(doc) >= len(old) {
+			t.Fatal("fields not removed")
+		}
+		g, err := ReadWaveform(strings.NewReader(doc), "old.json")
+		if err != nil {
+			t.Fatalf("rise time %g: a file without filter and phase step: %v", m.RiseTime, err)
+		}
+		gm := g.Verification.Model
+		if gm.Filter != GaussianFilter || gm.PhaseStep != 0 || gm.RiseTime != m.RiseTime {
+			t.Errorf("rise time %g: read %+v", m.RiseTime, gm)
+		}
+		if v := mustVerify(t, g.Waveform, gm); !v.Same(f.Verification) {
+			t.Errorf("rise time %g: re-verification differs", m.RiseTime)
+		}
+		// Written again, the file carries the fields.
+		if b := encode(t, g); !bytes.Contains(b, []byte(`"filter": "`+m.filterName()+`"`)) || !bytes.Contains(b, []byte(`"phase_step_rad": 0,`)) {
+			t.Errorf("rise time %g: rewritten file lacks filter or phase step", m.RiseTime)
+		}
+	}
+}
+
+// Same compares the filter (when there is one) and the phase step.
+func TestSameModelFields(t *testing.T) {
+	base := Verification{Model: ErrorModel{RiseTime: 2e-9, PhaseStep: 0.01}, Adiabaticity: math.NaN()}
+	for _, c := range []struct {
+		name string
+		edit func(*ErrorModel)
+		same bool
+	}{
+		{"identical", func(m *ErrorModel) {}, true},
+		{"filter kind", func(m *ErrorModel) { m.Filter = FirstOrderFilter }, false},
+		{"phase step ulp", func(m *ErrorModel) { m.PhaseStep = math.Nextafter(m.PhaseStep, 1) }, false},
+		{"no phase step", func(m *ErrorModel) { m.PhaseStep = 0 }, false},
+		{"kind without rise time", func(m *ErrorModel) { m.RiseTime = 0; m.Filter = FirstOrderFilter }, false},
+	} {
+		o := base
+		c.edit(&o.Model)
+		if got := base.Same(&o); got != c.same {
+			t.Errorf("%s: Same = %v", c.name, got)
+		}
+	}
+	a := Verification{Model: ErrorModel{Filter: FirstOrderFilter}, Adiabaticity: math.NaN()}
+	b := Verification{Model: ErrorModel{}, Adiabaticity: math.NaN()}
+	if !a.Same(&b) {
+		t.Error("a filter kind without a rise time (filter none) is not the Same as none")
 	}
 }
 
@@ -338,6 +441,11 @@ func TestReadWaveformErrors(t *testing.T) {
 		{"self coupling", strings.Replace(good, `"upper": "e"`, `"upper": "g0"`, 1), "/scheme/channels/0", "to itself"},
 		{"not unitary", strings.Replace(good, `"im": [`, `"im": [[0.5, 0], [0, 0]], "x": [`, 1), "", "does not match the schema"},
 		{"edited code", editCode(good), "/channels/0/i_code/", "does not match the sample"},
+		{"filter without rise time", strings.Replace(good, `"filter": "none"`, `"filter": "first-order"`, 1), "/verification/model/rise_time_s", "the first-order filter needs a positive rise time"},
+		{"rise time without filter", strings.Replace(good, `"rise_time_s": 0,`, `"rise_time_s": 2e-9,`, 1), "/verification/model/filter", "filter is none but rise_time_s is 2e-09 s"},
+		{"unknown filter", strings.Replace(good, `"filter": "none"`, `"filter": "rc"`, 1), "/verification/model/filter", "does not match the schema"},
+		{"phase step above π", strings.Replace(good, `"phase_step_rad": 0,`, `"phase_step_rad": 3.1415926535897936,`, 1), "/verification/model/phase_step_rad", "does not match the schema"},
+		{"negative phase step", strings.Replace(good, `"phase_step_rad": 0,`, `"phase_step_rad": -0.1,`, 1), "/verification/model/phase_step_rad", "does not match the schema"},
 		{"pass flag", strings.Replace(good, `"pass": true
   }`, `"pass": false
   }`, 1), "/verification/pass", "the checks say true"},

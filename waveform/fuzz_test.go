@@ -58,6 +58,8 @@ func seeds(f *testing.F, doc []byte) {
 func FuzzReadWaveform(f *testing.F) {
 	seeds(f, smallWaveformFile(f, ErrorModel{}))
 	seeds(f, smallWaveformFile(f, ErrorModel{AmplitudeError: 0.1, ChannelErrors: []float64{0.01, 0.02}, Decay: 1e5, Dephasing: 1e4, RiseTime: 3e-9}))
+	seeds(f, smallWaveformFile(f, ErrorModel{Filter: FirstOrderFilter, RiseTime: 3e-9, PhaseStep: 2 * math.Pi / 64}))
+	seeds(f, smallWaveformFile(f, ErrorModel{PhaseStep: math.Pi / 8}))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		file, err := ReadWaveform(bytes.NewReader(data), "fuzz.json")
 		if err != nil {

@@ -81,20 +81,20 @@ func (lw *lindbladWork) fidelity(comp []int, target *holonomy.Mat) (fid, leak fl
 }
 
 // runLindblad is Run's path for a model with dephasing.
-func (s *Simulator) runLindblad(m *ErrorModel, steps, sub, pad, stride int, dt float64, out *Outcome) error {
+func (s *Simulator) runLindblad(m *ErrorModel, steps, stride int, dt float64, out *Outcome) error {
 	if s.lind == nil {
 		s.lind = newLindbladWork(s.n, s.w.Scheme.Computational)
 	}
 	lw := s.lind
 	comp := s.w.Scheme.Computational
 	lw.reset(comp, s.decay, s.isComp, m.Dephasing)
-	s.recordRho(out, stride, 0, pad)
+	s.recordRho(out, stride, 0)
 	for j := 0; j < steps; j++ {
 		s.controls(j)
 		s.hamiltonian()
 		lw.step(s.h, dt)
-		if (j+1)%sub == 0 {
-			s.recordRho(out, stride, (j+1)/sub, pad)
+		if (j+1)%s.sub == 0 {
+			s.recordRho(out, stride, (j+1)/s.sub)
 		}
 	}
 	out.Fidelity, out.Leakage = lw.fidelity(comp, s.w.Target)
@@ -102,7 +102,7 @@ func (s *Simulator) runLindblad(m *ErrorModel, steps, sub, pad, stride int, dt f
 }
 
 // recordRho is record for the density-matrix path.
-func (s *Simulator) recordRho(out *Outcome, stride, q, pad int) {
+func (s *Simulator) recordRho(out *Outcome, stride, q int) {
 	lw := s.lind
 	n := s.n
 	for a := range s.w.Scheme.Computational {
@@ -119,11 +119,10 @@ func (s *Simulator) recordRho(out *Outcome, stride, q, pad int) {
 		out.PeakAux[a] = max(out.PeakAux[a], aux)
 		out.PeakExcited[a] = max(out.PeakExcited[a], exc)
 	}
-	last := s.w.Len() + 2*pad
-	if stride == 0 || (q%stride != 0 && q != last) {
+	if stride == 0 || (q%stride != 0 && q != s.last) {
 		return
 	}
-	out.Times = append(out.Times, float64(q-pad)*s.w.Dt())
+	out.Times = append(out.Times, float64(q-s.padL)*s.w.Dt())
 	for a := range s.w.Scheme.Computational {
 		for l := 0; l < n; l++ {
 			out.Populations[a][l] = append(out.Populations[a][l], lw.population(l, a, s.d))

@@ -87,8 +87,9 @@ const (
 	// DefaultMinFidelity is the fidelity goal used when a Plan gives none.
 	DefaultMinFidelity = 0.9999
 	// MaxSampleLimit is the largest sample count this package builds or
-	// reads, whatever the hardware allows: 2^20 samples per channel.
-	MaxSampleLimit = 1 << 20
+	// reads, whatever the hardware allows: 2^24 samples per channel (the
+	// spec bound; memory is bounded separately before allocation).
+	MaxSampleLimit = 1 << 24
 	// MaxDACBits is the largest DAC resolution supported.
 	MaxDACBits = 24
 	// MaxSegments is the largest number of segments in a plan or file.

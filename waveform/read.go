@@ -397,10 +397,18 @@ func (d *verificationDoc) parse(name string, nq, nch int) (*Verification, error)
 	if len(m.ChannelErrors) != 0 && len(m.ChannelErrors) != nch {
 		return nil, ferr(name, p+"/model/channel_amplitude_errors", "%d channel errors for %d channels; give one per channel or none", len(m.ChannelErrors), nch)
 	}
+	filter, err := parseFilter(name, p+"/model", &m)
+	if err != nil {
+		return nil, err
+	}
+	if !(m.PhaseStep >= 0 && m.PhaseStep <= math.Pi) {
+		return nil, ferr(name, p+"/model/phase_step_rad", "phase step %g rad; need 0 (exact phases) to π", m.PhaseStep)
+	}
 	v := &Verification{
 		Model: ErrorModel{
 			AmplitudeError: m.AmplitudeError, OnePhotonDetuning: m.OnePhotonDetuning, TwoPhotonDetuning: m.TwoPhotonDetuning,
-			Decay: m.Decay, Dephasing: m.Dephasing, RiseTime: m.RiseTime, SubSteps: m.SubSteps, Unquantized: !m.Quantized,
+			Decay: m.Decay, Dephasing: m.Dephasing, RiseTime: m.RiseTime, Filter: filter, SubSteps: m.SubSteps,
+			PhaseStep: m.PhaseStep, Unquantized: !m.Quantized,
 		},
 		Fidelity: d.Fidelity, Leakage: d.Leakage, PeakAux: d.PeakAux, PeakExcited: d.PeakExcited,
 		Adiabaticity: math.NaN(),
@@ -423,4 +431,33 @@ func (d *verificationDoc) parse(name string, nq, nch int) (*Verification, error)
 		return nil, ferr(name, p+"/pass", "pass is %v but the checks say %v", d.Pass, v.Pass())
 	}
 	return v, nil
+}
+
+// parseFilter checks the filter of a model document against its rise
+// time and returns the filter kind. An absent filter (a file written
+// before the field existed) means gaussian with a rise time, none
+// without.
+func parseFilter(name, ptr string, m *modelDoc) (FilterKind, error) {
+	switch m.Filter {
+	case "":
+		return GaussianFilter, nil
+	case "none":
+		if m.RiseTime != 0 {
+			return 0, ferr(name, ptr+"/filter", "filter is none but rise_time_s is %g s; give gaussian or first-order, or a rise time of 0", m.RiseTime)
+		}
+		return GaussianFilter, nil
+	}
+	var k FilterKind
+	switch m.Filter {
+	case GaussianFilter.String():
+		k = GaussianFilter
+	case FirstOrderFilter.String():
+		k = FirstOrderFilter
+	default:
+		return 0, ferr(name, ptr+"/filter", "filter %q; expected none, gaussian or first-order", m.Filter)
+	}
+	if !(m.RiseTime > 0) {
+		return 0, ferr(name, ptr+"/rise_time_s", "the %s filter needs a positive rise time; found %g s", m.Filter, m.RiseTime)
+	}
+	return k, nil
 }

@@ -33,22 +33,81 @@ type ErrorModel struct {
 	// between two computational levels decays as exp(−γ_φ t).
 	Dephasing float64
 	// RiseTime is the 10–90% rise time (s) of the analog output, modelled
-	// as a zero-phase Gaussian low-pass filter applied to the
-	// zero-order-hold signal: its step response is Φ(t/σ) with Φ the
-	// standard normal distribution function and σ = RiseTime/2.5631. The
-	// filtered drive is evaluated exactly (as the convolution of the
-	// held samples with the Gaussian) at the midpoints of SubSteps
-	// sub-steps per sample, on a time grid extended by 6σ at both ends,
-	// and propagated with those sub-steps. Zero means unlimited bandwidth.
-	// The filter delays nothing; a real filter's common delay shifts all
-	// channels alike and does not change the gate.
+	// as a linear low-pass filter of shape Filter applied to the
+	// zero-order-hold signal of every channel and controlled detuning
+	// track. The filtered signal is evaluated exactly, as the convolution
+	// of the held samples with the filter's impulse response, at the
+	// midpoints of SubSteps sub-steps per sample, on a time grid extended
+	// to hold the filter's reach, and propagated with those sub-steps. The
+	// static error detunings (OnePhotonDetuning, TwoPhotonDetuning) act
+	// throughout the extended grid. Zero means unlimited bandwidth, and
+	// Filter is then ignored (it must still be a valid kind).
 	RiseTime float64
+	// Filter is the shape of the low-pass filter when RiseTime > 0; the
+	// zero value is GaussianFilter. See FilterKind for the two shapes,
+	// their reach and the extension of the time grid.
+	Filter FilterKind
 	// SubSteps is the number of propagation steps per sample when
 	// RiseTime > 0; zero means 8.
 	SubSteps int
+	// PhaseStep is the drive-phase resolution (rad) of a phase modulator
+	// that can set phases only on a grid: the phase of every held sample
+	// of every channel (from the DAC codes, or from I and Q when
+	// Unquantized) is rounded to the nearest multiple of PhaseStep
+	// (halfway cases away from zero), its modulus kept, before filtering
+	// and propagation. A sample whose phase is already on the grid is used
+	// unchanged. The phase switches exactly at the sample boundaries (no
+	// timing jitter). Zero means exact phases; the largest step is π.
+	PhaseStep float64
 	// Unquantized takes the drive from the unquantised I and Q instead of
 	// the DAC codes.
 	Unquantized bool
+}
+
+// FilterKind is the shape of the low-pass filter that models the analog
+// bandwidth of the drive chain (ErrorModel.Filter).
+type FilterKind int
+
+const (
+	// GaussianFilter is a zero-phase Gaussian low pass: the step response
+	// is Φ(t/σ), Φ the standard normal distribution function and
+	// σ = RiseTime/2.5631 (the 10–90% points of Φ are ±1.2816σ). Its
+	// kernel reaches 6σ both ways (the neglected tails hold Φ(−6) ≈ 1e−9
+	// of the pulse area) and the time grid is extended by as much at both
+	// ends. It delays nothing.
+	GaussianFilter FilterKind = iota
+	// FirstOrderFilter is a causal single-pole (RC) low pass with time
+	// constant τ = RiseTime/ln 9: the step response is 1 − e^{−t/τ} for
+	// t > 0, reaching 10% at τ ln(10/9) and 90% at τ ln 10. Its kernel
+	// reaches 12 ln 10 τ ≈ 27.6τ into the past (the neglected tail holds
+	// e^{−27.6} = 1e−12 of the pulse area) and the time grid is extended by
+	// as much after the end, so the gate includes the filter's tail and
+	// every pulse keeps its area (unit DC gain). The filter delays the
+	// signal (by τ for a slow ramp); a delay common to all channels and
+	// detuning tracks does not change the gate when no static error
+	// detuning acts during it.
+	FirstOrderFilter
+)
+
+// String returns "gaussian" or "first-order", the names used in waveform
+// files.
+func (k FilterKind) String() string {
+	switch k {
+	case GaussianFilter:
+		return "gaussian"
+	case FirstOrderFilter:
+		return "first-order"
+	}
+	return fmt.Sprintf("FilterKind(%d)", int(k))
+}
+
+// filterName returns the name of m's filter as written in waveform files:
+// "none" without a rise time, else the filter kind's name.
+func (m *ErrorModel) filterName() string {
+	if m.RiseTime == 0 {
+		return "none"
+	}
+	return m.Filter.String()
 }
 
 // gaussRise is the 10–90% rise time of Φ(t/σ) in units of σ: 2·z₀.₉ with
@@ -56,11 +115,20 @@ type ErrorModel struct {
 // distribution.
 const gaussRise = 2 * 1.2815515655446004
 
+// ln9 is ln 9, the 10–90% rise time of 1 − e^{−t/τ} in units of τ:
+// ln 10 − ln(10/9).
+const ln9 = 2.1972245773362196
+
 const (
+	// maxFilterSamples bounds the reach of a filter kernel in samples.
 	maxFilterSamples = 4096
 	// filterReach is the half-width of the Gaussian filter kernel in σ;
 	// the neglected tails hold Φ(−6) ≈ 1e−9 of the pulse area.
 	filterReach = 6
+	// firstOrderReach is the reach of the first-order filter kernel in τ,
+	// 12 ln 10: the neglected tail holds e^{−12 ln 10} = 1e−12 of the
+	// pulse area.
+	firstOrderReach = 12 * math.Ln10
 )
 
 // Outcome is the result of one simulation.
@@ -95,31 +163,38 @@ type Simulator struct {
 	// samples, including the last sample.
 	TracePoints int
 
-	w        *Waveform
-	n, d     int
-	nch      int
-	excited  []int
-	prop     *holonomy.Propagator
-	lind     *lindbladWork
-	h, u, e  *holonomy.Mat
-	tmp      *holonomy.Mat
-	pt       holonomy.Point
-	decay    []float64
-	zero     []float64
-	drv      []complex128 // current step's drives, rad/s
-	prevDrv  []complex128
-	dtn      []float64 // current step's controlled + error detunings, rad/s
-	prevDtn  []float64
-	scale    []float64 // 2π(1 + ε)(1 + ε_c) per channel
-	errDet   []float64 // error detunings per level, rad/s
-	m        ErrorModel
-	sub, pad int
-	R        int       // filter half-width in samples
-	kernel   []float64 // filter weights, sub × (2R+1)
-	kerSigma float64
-	kerSub   int
-	isComp   []bool
-	isExc    []bool
+	w       *Waveform
+	n, d    int
+	nch     int
+	excited []int
+	prop    *holonomy.Propagator
+	lind    *lindbladWork
+	h, u, e *holonomy.Mat
+	tmp     *holonomy.Mat
+	pt      holonomy.Point
+	decay   []float64
+	zero    []float64
+	drv     []complex128 // current step's drives, rad/s
+	prevDrv []complex128
+	dtn     []float64 // current step's controlled + error detunings, rad/s
+	prevDtn []float64
+	scale   []float64 // 2π(1 + ε)(1 + ε_c) per channel
+	errDet  []float64 // error detunings per level, rad/s
+	m       ErrorModel
+	sub     int // propagation steps per sample
+	padL    int // samples added before the waveform (filter reach)
+	padR    int // samples added after it
+	last    int // sample boundaries on the extended grid: N + padL + padR
+	back    int // the kernel weighs samples q − back … q + ahead
+	ahead   int
+	kernel  []float64 // filter weights, sub × (back + ahead + 1)
+	kerKind FilterKind
+	kerRise float64
+	kerSub  int
+	held    []complex128 // the samples read (phase-rounded), channel-major, when cached
+	cached  bool         // sample reads held
+	isComp  []bool
+	isExc   []bool
 }
 
 // NewSimulator returns a workspace for simulating w.
@@ -192,8 +267,17 @@ func (s *Simulator) validate(m *ErrorModel) error {
 	if m.RiseTime > s.w.Duration() {
 		return fmt.Errorf("error model: rise time %g s is longer than the waveform (%g s)", m.RiseTime, s.w.Duration())
 	}
-	if m.RiseTime > 0 && m.RiseTime/gaussRise*filterReach*s.w.Hardware.SampleRate > maxFilterSamples {
-		return fmt.Errorf("error model: rise time %g s spans more than %d samples", m.RiseTime, maxFilterSamples/filterReach)
+	if m.Filter != GaussianFilter && m.Filter != FirstOrderFilter {
+		return fmt.Errorf("error model: unknown filter kind %d; use GaussianFilter or FirstOrderFilter", int(m.Filter))
+	}
+	if m.RiseTime > 0 {
+		if reach := filterReachSamples(m.Filter, m.RiseTime, s.w.Hardware.SampleRate); reach > maxFilterSamples {
+			return fmt.Errorf("error model: the %s filter of rise time %g s reaches %.0f samples (%s); the limit is %d samples",
+				m.Filter, m.RiseTime, reach, reachText(m.Filter), maxFilterSamples)
+		}
+	}
+	if !finite(m.PhaseStep) || m.PhaseStep < 0 || m.PhaseStep > math.Pi {
+		return fmt.Errorf("error model: phase step %v rad; need a finite number from 0 (exact phases) to π", m.PhaseStep)
 	}
 	if m.SubSteps < 0 || m.SubSteps > 64 {
 		return fmt.Errorf("error model: %d sub-steps per sample; need 0 (default 8) to 64", m.SubSteps)
@@ -204,34 +288,61 @@ func (s *Simulator) validate(m *ErrorModel) error {
 	return nil
 }
 
+// filterReachSamples returns the reach of a filter kernel in samples: 6σ
+// for the Gaussian, 27.6τ for the first-order filter.
+func filterReachSamples(k FilterKind, rise, rate float64) float64 {
+	if k == FirstOrderFilter {
+		return rise / ln9 * firstOrderReach * rate
+	}
+	return rise / gaussRise * filterReach * rate
+}
+
+// reachText describes a filter's reach for messages.
+func reachText(k FilterKind) string {
+	if k == FirstOrderFilter {
+		return "27.6 time constants, τ = rise time/ln 9"
+	}
+	return "6σ, σ = rise time/2.5631"
+}
+
 // maxSteps bounds the propagation steps of one simulation (samples plus
 // filter margins, times sub-steps).
 const maxSteps = 1 << 24
 
-// Run propagates the waveform under m and stores the result in out,
-// reusing out's slices when they are large enough.
-func (s *Simulator) Run(m ErrorModel, out *Outcome) error {
-	if err := s.validate(&m); err != nil {
-		return err
+// prepare validates m and sets up the workspace for it: sub-steps, the
+// filter kernel and the extended grid, the amplitude scales, the error
+// detunings, the decay rates and the phase-rounded samples. It returns
+// the number of propagation steps.
+func (s *Simulator) prepare(m *ErrorModel) (int, error) {
+	if err := s.validate(m); err != nil {
+		return 0, err
 	}
 	w := s.w
-	n := s.n
 	N := w.Len()
-	sub, pad := 1, 0
+	sub, padL, padR := 1, 0, 0
 	if m.RiseTime > 0 {
 		sub = m.SubSteps
 		if sub == 0 {
 			sub = 8
 		}
-		sigma := m.RiseTime / gaussRise
-		pad = int(math.Ceil(filterReach*sigma*w.Hardware.SampleRate)) + 1
-		s.R = s.setKernel(sigma, sub)
+		s.setKernel(m.Filter, m.RiseTime, sub)
+		// The grid is extended by the kernel's reach (plus one sample),
+		// so that the filtered signal has risen from, and decayed to, the
+		// neglected tails at its ends: both ends for the Gaussian, after
+		// the end only for the causal first-order filter.
+		if m.Filter == FirstOrderFilter {
+			padR = s.back
+		} else {
+			sigma := m.RiseTime / gaussRise
+			padL = int(math.Ceil(filterReach*sigma*w.Hardware.SampleRate)) + 1
+			padR = padL
+		}
 	}
-	steps := (N + 2*pad) * sub
+	steps := (N + padL + padR) * sub
 	if steps > maxSteps {
-		return fmt.Errorf("error model: the simulation needs %d propagation steps; the limit is %d", steps, maxSteps)
+		return 0, fmt.Errorf("error model: the simulation needs %d propagation steps; the limit is %d", steps, maxSteps)
 	}
-	s.m, s.sub, s.pad = m, sub, pad
+	s.m, s.sub, s.padL, s.padR, s.last = *m, sub, padL, padR, N+padL+padR
 	for c := 0; c < s.nch; c++ {
 		f := 2 * math.Pi * (1 + m.AmplitudeError)
 		if m.ChannelErrors != nil {
@@ -254,6 +365,55 @@ func (s *Simulator) Run(m ErrorModel, out *Outcome) error {
 	for _, k := range s.excited {
 		s.decay[k] = m.Decay
 	}
+	// The held samples, phase-rounded when the model has a phase step,
+	// are computed once and read from held: the filter reads each of
+	// them many times. Without a phase step they are the very values
+	// sample computes.
+	s.cached = false
+	if m.PhaseStep > 0 || m.RiseTime > 0 {
+		s.held = growC(s.held, s.nch*N)
+		for c := 0; c < s.nch; c++ {
+			for k := 0; k < N; k++ {
+				z := s.sample(c, k)
+				if m.PhaseStep > 0 {
+					z = roundPhase(z, m.PhaseStep)
+				}
+				s.held[c*N+k] = z
+			}
+		}
+		s.cached = true
+	}
+	return steps, nil
+}
+
+// roundPhase returns z with its phase rounded to the nearest multiple of
+// step (halfway cases away from zero) and its modulus kept; z itself when
+// its phase is already a multiple of step (or z is zero).
+func roundPhase(z complex128, step float64) complex128 {
+	if z == 0 {
+		return z
+	}
+	ph := math.Atan2(imag(z), real(z))
+	q := step * math.Round(ph/step)
+	if q == ph {
+		return z
+	}
+	r := math.Hypot(real(z), imag(z))
+	sn, cs := math.Sincos(q)
+	return complex(r*cs, r*sn)
+}
+
+// Run propagates the waveform under m and stores the result in out,
+// reusing out's slices when they are large enough.
+func (s *Simulator) Run(m ErrorModel, out *Outcome) error {
+	steps, err := s.prepare(&m)
+	if err != nil {
+		return err
+	}
+	w := s.w
+	n := s.n
+	N := w.Len()
+	sub, padL, padR := s.sub, s.padL, s.padR
 	dt := w.Dt() / float64(sub)
 	// Outputs.
 	d := s.d
@@ -265,8 +425,8 @@ func (s *Simulator) Run(m ErrorModel, out *Outcome) error {
 	tp := s.TracePoints
 	stride := 0
 	if tp > 0 {
-		stride = max(1, (N+2*pad+tp-1)/tp)
-		np := (N+2*pad+stride-1)/stride + 1
+		stride = max(1, (N+padL+padR+tp-1)/tp)
+		np := (N+padL+padR+stride-1)/stride + 1
 		out.Times = growF(out.Times, np)[:0]
 		if len(out.Populations) != d {
 			out.Populations = make([][][]float64, d)
@@ -283,12 +443,12 @@ func (s *Simulator) Run(m ErrorModel, out *Outcome) error {
 		out.Times, out.Populations = nil, nil
 	}
 	if m.Dephasing > 0 {
-		return s.runLindblad(&m, steps, sub, pad, stride, dt, out)
+		return s.runLindblad(&m, steps, stride, dt, out)
 	}
 	lossy := m.Decay > 0
 	s.u.SetIdentity()
 	eValid := false
-	s.record(out, stride, 0, pad)
+	s.record(out, stride, 0)
 	for j := 0; j < steps; j++ {
 		s.controls(j)
 		if j > 0 && s.sameAsPrevious() {
@@ -305,7 +465,7 @@ func (s *Simulator) Run(m ErrorModel, out *Outcome) error {
 		}
 		s.keep()
 		if (j+1)%sub == 0 {
-			s.record(out, stride, (j+1)/sub, pad)
+			s.record(out, stride, (j+1)/sub)
 		}
 	}
 	out.Fidelity, out.Leakage = holonomy.GateFidelity(s.u, w.Scheme.Computational, w.Target)
@@ -354,7 +514,7 @@ func (s *Simulator) keep() {
 // record updates the peak auxiliary populations after sample boundary q
 // (counted on the extended grid) and stores a trace point every stride
 // boundaries and at the last one.
-func (s *Simulator) record(out *Outcome, stride, q, pad int) {
+func (s *Simulator) record(out *Outcome, stride, q int) {
 	n := s.n
 	u := s.u.Data
 	for i, c := range s.w.Scheme.Computational {
@@ -373,11 +533,10 @@ func (s *Simulator) record(out *Outcome, stride, q, pad int) {
 		out.PeakAux[i] = math.Max(out.PeakAux[i], aux)
 		out.PeakExcited[i] = math.Max(out.PeakExcited[i], exc)
 	}
-	last := s.w.Len() + 2*pad
-	if stride == 0 || (q%stride != 0 && q != last) {
+	if stride == 0 || (q%stride != 0 && q != s.last) {
 		return
 	}
-	out.Times = append(out.Times, float64(q-pad)*s.w.Dt())
+	out.Times = append(out.Times, float64(q-s.padL)*s.w.Dt())
 	for i, c := range s.w.Scheme.Computational {
 		for l := 0; l < n; l++ {
 			x := u[l*n+c]
@@ -387,8 +546,12 @@ func (s *Simulator) record(out *Outcome, stride, q, pad int) {
 }
 
 // sample returns the drive of channel c at sample k (Hz), from the DAC
-// codes or, for an unquantised model, from I and Q.
+// codes or, for an unquantised model, from I and Q, with its phase
+// rounded when the model has a phase step.
 func (s *Simulator) sample(c, k int) complex128 {
+	if s.cached {
+		return s.held[c*s.w.Len()+k]
+	}
 	if s.m.Unquantized {
 		return complex(s.w.I[c][k], s.w.Q[c][k])
 	}
@@ -401,7 +564,7 @@ func (s *Simulator) sample(c, k int) complex128 {
 func (s *Simulator) controls(j int) {
 	w := s.w
 	drv, dtn := s.drv, s.dtn
-	if s.sub == 1 && s.pad == 0 {
+	if s.m.RiseTime == 0 {
 		for c := range drv {
 			drv[c] = s.sample(c, j) * complex(s.scale[c], 0)
 		}
@@ -414,19 +577,19 @@ func (s *Simulator) controls(j int) {
 		}
 		return
 	}
-	N, R := w.Len(), s.R
-	width := 2*R + 1
-	q, o := j/s.sub-s.pad, j%s.sub
+	N, back, ahead := w.Len(), s.back, s.ahead
+	width := back + ahead + 1
+	q, o := j/s.sub-s.padL, j%s.sub
 	ker := s.kernel[o*width : (o+1)*width]
 	for c := range drv {
 		drv[c] = 0
 	}
 	copy(dtn, s.errDet)
-	for r := max(-R, -q); r <= R && q+r < N; r++ {
+	for r := max(-back, -q); r <= ahead && q+r < N; r++ {
 		k := q + r
-		wt := ker[r+R]
+		wt := ker[r+back]
 		for c := range drv {
-			drv[c] += s.sample(c, k) * complex(s.scale[c]*wt, 0)
+			drv[c] += s.held[c*N+k] * complex(s.scale[c]*wt, 0)
 		}
 		for l, tr := range w.Detuning {
 			if tr != nil {
@@ -436,31 +599,69 @@ func (s *Simulator) controls(j int) {
 	}
 }
 
-// setKernel computes the weights of the held samples q+r, r = −R … R, in
-// the filtered signal at the midpoint of sub-step o of sample q:
-// w_o(r) = Φ((x − r)Δt/σ) − Φ((x − r − 1)Δt/σ), x = (o + ½)/sub.
-func (s *Simulator) setKernel(sigma float64, sub int) int {
-	dts := s.w.Dt() / sigma
-	R := int(math.Ceil(filterReach/dts)) + 1
-	width := 2*R + 1
-	if s.kerSigma == sigma && s.kerSub == sub && len(s.kernel) == sub*width {
-		return R
+// setKernel computes the weights of the held samples q+r, r = −back …
+// ahead, in the filtered signal at the midpoint x = (o + ½)/sub of
+// sub-step o of sample q, for a filter of the given kind and 10–90% rise
+// time. With S the filter's step response and Δt the sample interval,
+// w_o(r) = S((x − r)Δt) − S((x − r − 1)Δt) (the response at time x Δt
+// to a unit sample held over [rΔt, (r+1)Δt)).
+//
+// Gaussian: S(t) = Φ(t/σ), back = ahead = ⌈6σ/Δt⌉ + 1.
+//
+// First order: S(t) = 1 − e^{−t/τ} for t > 0 and 0 before, so future
+// samples weigh nothing (ahead = 0), w_o(0) = 1 − e^{−a x} and, for
+// r < 0, w_o(r) = e^{−a(x − r − 1)}(1 − e^{−a}) with a = Δt/τ, both
+// computed with expm1 to keep their relative accuracy; back =
+// ⌈27.6τ/Δt⌉ + 1. The weights of a row sum to 1 − e^{−a(x + back)}, the
+// neglected tail being below 1e−12.
+func (s *Simulator) setKernel(kind FilterKind, rise float64, sub int) {
+	if s.kerKind == kind && s.kerRise == rise && s.kerSub == sub && len(s.kernel) > 0 {
+		return
 	}
-	s.kernel = growF(s.kernel, sub*width)[:sub*width]
-	phi := func(z float64) float64 { return 0.5 * math.Erfc(-z/math.Sqrt2) }
-	for o := 0; o < sub; o++ {
-		x := (float64(o) + 0.5) / float64(sub)
-		for r := -R; r <= R; r++ {
-			s.kernel[o*width+r+R] = phi((x-float64(r))*dts) - phi((x-float64(r)-1)*dts)
+	var back, ahead int
+	switch kind {
+	case FirstOrderFilter:
+		a := s.w.Dt() / (rise / ln9)
+		back, ahead = int(math.Ceil(firstOrderReach/a))+1, 0
+		width := back + 1
+		s.kernel = growF(s.kernel, sub*width)[:sub*width]
+		g := -math.Expm1(-a) // 1 − e^{−a}
+		for o := 0; o < sub; o++ {
+			x := (float64(o) + 0.5) / float64(sub)
+			row := s.kernel[o*width : (o+1)*width]
+			for r := -back; r < 0; r++ {
+				row[r+back] = math.Exp(-a*(x-float64(r)-1)) * g
+			}
+			row[back] = -math.Expm1(-a * x)
+		}
+	default:
+		dts := s.w.Dt() / (rise / gaussRise)
+		R := int(math.Ceil(filterReach/dts)) + 1
+		back, ahead = R, R
+		width := 2*R + 1
+		s.kernel = growF(s.kernel, sub*width)[:sub*width]
+		phi := func(z float64) float64 { return 0.5 * math.Erfc(-z/math.Sqrt2) }
+		for o := 0; o < sub; o++ {
+			x := (float64(o) + 0.5) / float64(sub)
+			for r := -R; r <= R; r++ {
+				s.kernel[o*width+r+R] = phi((x-float64(r))*dts) - phi((x-float64(r)-1)*dts)
+			}
 		}
 	}
-	s.kerSigma, s.kerSub = sigma, sub
-	return R
+	s.back, s.ahead = back, ahead
+	s.kerKind, s.kerRise, s.kerSub = kind, rise, sub
 }
 
 func growF(b []float64, n int) []float64 {
 	if cap(b) < n {
 		return make([]float64, n)
+	}
+	return b[:n]
+}
+
+func growC(b []complex128, n int) []complex128 {
+	if cap(b) < n {
+		return make([]complex128, n)
 	}
 	return b[:n]
 }

@@ -55,7 +55,8 @@ func (v *Verification) Same(o *Verification) bool {
 	m, n := v.Model, o.Model
 	if !eq(m.AmplitudeError, n.AmplitudeError) || !eqs(m.ChannelErrors, n.ChannelErrors) || !eq(m.OnePhotonDetuning, n.OnePhotonDetuning) ||
 		!eq(m.TwoPhotonDetuning, n.TwoPhotonDetuning) || !eq(m.Decay, n.Decay) || !eq(m.Dephasing, n.Dephasing) ||
-		!eq(m.RiseTime, n.RiseTime) || m.SubSteps != n.SubSteps || m.Unquantized != n.Unquantized {
+		!eq(m.RiseTime, n.RiseTime) || m.filterName() != n.filterName() || m.SubSteps != n.SubSteps ||
+		!eq(m.PhaseStep, n.PhaseStep) || m.Unquantized != n.Unquantized {
 		return false
 	}
 	if !eq(v.Fidelity, o.Fidelity) || !eq(v.Leakage, o.Leakage) || !eqs(v.PeakAux, o.PeakAux) ||

@@ -186,7 +186,9 @@ type Map struct {
 type BudgetRow struct {
 	// Term names the error term, e.g. "non-adiabaticity".
 	Term string
-	// Infidelity is 1 − F with this term alone switched on.
+	// Infidelity is the infidelity of the line: for the ideal line and the
+	// total, 1 − F; for an error term, the increase of 1 − F over the
+	// ideal model when that term alone is switched on.
 	Infidelity float64
 	// Note explains the term or the model used.
 	Note string

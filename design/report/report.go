@@ -272,8 +272,8 @@ func budgetSection(b *bytes.Buffer, d *Data) error {
 		missing(b, "No error budget in this report.")
 		return nil
 	}
-	b.WriteString("<p class=\"lead\">Infidelity 1&#160;−&#160;F with each error term switched on alone; the bars use a logarithmic scale from 10<sup>−8</sup> to 1.</p>\n")
-	b.WriteString("<table id=\"tab-budget\">\n<thead><tr><th>Error term</th><th class=\"num\">1 − F</th><th class=\"barcol\">Scale</th><th>Note</th></tr></thead>\n<tbody>\n")
+	b.WriteString("<p class=\"lead\">The first line is the infidelity 1&#160;−&#160;F of the ideal model (no errors); each further line is the infidelity one error term adds when it alone is switched on; the total has every term on. A negative value means the term happened to help. The bars use a logarithmic scale from 10<sup>−8</sup> to 1.</p>\n")
+	b.WriteString("<table id=\"tab-budget\">\n<thead><tr><th>Error term</th><th class=\"num\">Infidelity</th><th class=\"barcol\">Scale</th><th>Note</th></tr></thead>\n<tbody>\n")
 	for _, r := range d.Budget {
 		class := ""
 		if r.Total {
