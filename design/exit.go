@@ -11,8 +11,8 @@ const (
 	ExitOK          = 0   // success; every check passed
 	ExitInternal    = 1   // unexpected failure (a bug; please report it)
 	ExitBadInput    = 2   // bad flags, spec, loop file or waveform file
-	ExitChecks      = 3   // the work finished but a fidelity or hardware check failed
-	ExitInfeasible  = 4   // the target cannot be reached, or the hardware limits make it impossible
+	ExitChecks      = 3   // the work finished but a check failed
+	ExitInfeasible  = 4   // the target cannot be reached, or the gate does not fit the hardware
 	ExitOutput      = 5   // an output file exists (use --overwrite) or cannot be written
 	ExitInterrupted = 130 // interrupted (Ctrl-C); no partial files were left
 )

@@ -16,48 +16,20 @@ import (
 // Test gates of the robustness tests. The hardware numbers are invented
 // demo values (20 MHz Rabi limit, 1 GS/s, 14-bit DAC).
 
-// rbHardware returns demo hardware for nch channels with Rabi limit rabi (Hz).
+// rbHardware returns demo hardware for nch channels with Rabi limit rabi
+// (Hz): testHardware with a slower slew limit and longer gates allowed.
 func rbHardware(nch int, rabi float64) Hardware {
-	h := Hardware{SampleRate: 1e9, MaxSlew: 1e15, Granularity: 16, MaxSamples: 1 << 20, DACBits: 14, MaxDuration: 1e-3}
-	for i := 0; i < nch; i++ {
-		h.MaxRabi = append(h.MaxRabi, rabi)
-		h.FullScale = append(h.FullScale, 1.2*rabi)
-	}
+	h := testHardware(nch, rabi)
+	h.MaxSlew, h.MaxDuration = 1e15, 1e-3
 	return h
 }
 
-// rbTripodLoop is the real tripod loop of Duan, Cirac and Zoller,
-// Science 292, 1695 (2001), in the parametrisation of holonomy.TripodPoint:
-// θ: 0 → π/2 at φ = 0, φ: 0 → φ₀ at θ = π/2, θ: π/2 → 0 at φ = φ₀. Its
-// holonomy rotates the qubit levels: g0 → cos φ₀ g0 + sin φ₀ g1,
-// g1 → −sin φ₀ g0 + cos φ₀ g1.
-func rbTripodLoop(phi0 float64) holonomy.Loop {
-	return func(s float64, p holonomy.Point) {
-		var th, ph float64
-		switch {
-		case s < 1.0/3:
-			th, ph = math.Pi/2*3*s, 0
-		case s < 2.0/3:
-			th, ph = math.Pi/2, phi0*(3*s-1)
-		default:
-			th, ph = math.Pi/2*(3-3*s), phi0
-		}
-		holonomy.TripodPoint(p, 1, th, ph)
-	}
-}
-
-// rbRotation returns [[cos φ, −sin φ], [sin φ, cos φ]].
-func rbRotation(phi float64) *holonomy.Mat {
-	c, s := math.Cos(phi), math.Sin(phi)
-	return holonomy.NewMatFrom(2, 2, []complex128{complex(c, 0), complex(-s, 0), complex(s, 0), complex(c, 0)})
-}
-
-// rbTripod builds the adiabatic tripod gate of rbTripodLoop(phi0) with
+// rbTripod builds the adiabatic tripod gate of sliceLoop(phi0) with
 // adiabaticity goal alpha and Rabi limit rabi (Hz).
 func rbTripod(tb testing.TB, phi0, alpha, rabi float64) *Waveform {
 	tb.Helper()
-	p := &Plan{Scheme: holonomy.Tripod(), Target: rbRotation(phi0),
-		Segments: []Segment{{Kind: Adiabatic, Shape: rbTripodLoop(phi0)}}, Adiabaticity: alpha}
+	p := &Plan{Scheme: holonomy.Tripod(), Target: rotation(phi0),
+		Segments: []Segment{{Kind: Adiabatic, Shape: sliceLoop(phi0)}}, Adiabaticity: alpha}
 	w, err := Build(p, rbHardware(3, rabi))
 	if err != nil {
 		tb.Fatal(err)

@@ -21,8 +21,10 @@ const exitCodes = `Exit codes:
   0    success; every check passed
   1    unexpected failure (a bug)
   2    bad input: flags, spec, loop file or waveform file
-  3    the work finished but a fidelity or hardware check failed
-  4    the target cannot be reached or the hardware limits make it impossible
+  3    the work finished but a check failed (fidelity or adiabaticity goal;
+       for verify and check, any check including hardware limits)
+  4    the target cannot be reached by the scheme's loops, or the gate does
+       not fit the hardware limits (design then writes no files)
   5    an output file exists (use --overwrite) or cannot be written
   130  interrupted (Ctrl-C); no partial files were left`
 
@@ -44,6 +46,7 @@ times in seconds.
 		SilenceUsage:  true,
 		SilenceErrors: true,
 	}
+	root.CompletionOptions.DisableDefaultCmd = true
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
 		return &design.InputError{Err: fmt.Errorf("%w (see '%s --help')", err, c.CommandPath())}
 	})
@@ -63,6 +66,21 @@ func printJSON(w io.Writer, v any) error {
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")
 	return enc.Encode(v)
+}
+
+// emit prints a command's result (as JSON or through text) when there
+// is one, then returns the command's error for the exit code.
+func emit(cmd *cobra.Command, asJSON bool, res any, have bool, text func(io.Writer), err error) error {
+	if have {
+		if asJSON {
+			if perr := printJSON(cmd.OutOrStdout(), res); perr != nil {
+				return perr
+			}
+		} else {
+			text(cmd.OutOrStdout())
+		}
+	}
+	return finish(err)
 }
 
 // finish prints the outcome's error after the report and returns it, so
@@ -133,16 +151,7 @@ Existing files are not replaced unless --overwrite is given.`,
 				opt.Log = os.Stderr
 			}
 			res, err := design.Design(cmd.Context(), spec, opt)
-			if res != nil {
-				if asJSON {
-					if perr := printJSON(cmd.OutOrStdout(), res); perr != nil {
-						return perr
-					}
-				} else {
-					printOutcome(cmd.OutOrStdout(), res)
-				}
-			}
-			return finish(err)
+			return emit(cmd, asJSON, res, res != nil, func(w io.Writer) { printOutcome(w, res) }, err)
 		},
 	}
 	f := cmd.Flags()
@@ -182,16 +191,7 @@ in the file is used unless flags override its terms.`,
 				Progress:  stderrProgress(quiet || asJSON),
 			}
 			res, err := design.VerifyFile(cmd.Context(), args[0], opt)
-			if res != nil {
-				if asJSON {
-					if perr := printJSON(cmd.OutOrStdout(), res); perr != nil {
-						return perr
-					}
-				} else {
-					printOutcome(cmd.OutOrStdout(), res)
-				}
-			}
-			return finish(err)
+			return emit(cmd, asJSON, res, res != nil, func(w io.Writer) { printOutcome(w, res) }, err)
 		},
 	}
 	f := cmd.Flags()
@@ -226,16 +226,7 @@ the loop, and explains in words what the loop can and cannot do.`,
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			res, err := design.CheckLoopFile(cmd.Context(), args[0], design.CheckOptions{Target: target})
-			if res != nil {
-				if asJSON {
-					if perr := printJSON(cmd.OutOrStdout(), res); perr != nil {
-						return perr
-					}
-				} else {
-					printLoopCheck(cmd.OutOrStdout(), res)
-				}
-			}
-			return finish(err)
+			return emit(cmd, asJSON, res, res != nil, func(w io.Writer) { printLoopCheck(w, res) }, err)
 		},
 	}
 	cmd.Flags().BoolVar(&asJSON, "json", false, "print the outcome as JSON on stdout")
