@@ -257,10 +257,14 @@ func describeCheck(c waveform.Check) string {
 }
 
 // FormatSI formats v with four significant digits and an SI prefix on unit
-// ("96 ns", "20 MHz"); with an empty unit it formats the plain number.
+// ("96 ns", "20 MHz"); slew rates in Hz/s are shown in MHz/µs, and with
+// an empty unit it formats the plain number.
 func FormatSI(v float64, unit string) string {
-	if unit == "" {
+	switch unit {
+	case "":
 		return fmt.Sprintf("%.6g", v)
+	case "Hz/s": // slew rates read best as MHz per µs
+		return fmt.Sprintf("%.4g MHz/µs", v/1e12)
 	}
 	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
 		return fmt.Sprintf("%g %s", v, unit)

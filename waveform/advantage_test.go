@@ -84,7 +84,7 @@ func TestAdvantageDynamicalGate(t *testing.T) {
 	r := 1 / math.Sqrt2
 	targets := map[string]*holonomy.Mat{
 		"H":   holonomy.NewMatFrom(2, 2, []complex128{complex(r, 0), complex(r, 0), complex(r, 0), complex(-r, 0)}),
-		"Ry":  rbRotation(math.Pi / 4),
+		"Ry":  rotation(math.Pi / 4),
 		"X":   holonomy.NewMatFrom(2, 2, []complex128{0, 1, 1, 0}),
 		"T":   holonomy.NewMatFrom(2, 2, []complex128{1, 0, 0, cmplx.Rect(1, math.Pi/4)}),
 		"rnd": DynamicalPulse{Area: 2.1, Phase: -0.7, ZAngle: 1.3}.Unitary(),

@@ -44,13 +44,13 @@ func printOutcome(w io.Writer, o *design.Outcome) {
 		fmt.Fprintf(w, "reproduced  %s\n", verdict)
 	}
 	if a := o.Advantage; a != nil {
-		fmt.Fprintf(w, "\nrobust region (fidelity ≥ %g), geometric vs dynamical gate:\n", a.Threshold)
+		fmt.Fprintf(w, "\nwidth of the region with fidelity ≥ %g along each error axis, geometric vs dynamical gate:\n", a.Threshold)
 		for _, r := range a.Rows {
 			ratio := "—"
 			if r.Ratio != nil {
-				ratio = fmt.Sprintf("×%.3g", *r.Ratio)
+				ratio = fmt.Sprintf("%s×%.3g", open(r.GeometricOpen && !r.DynamicalOpen), *r.Ratio)
 			}
-			fmt.Fprintf(w, "  %-22s %12s%s  vs %12s%s   %s\n", r.Axis, width(r.Geometric, r.Unit), open(r.GeometricOpen), width(r.Dynamical, r.Unit), open(r.DynamicalOpen), ratio)
+			fmt.Fprintf(w, "  %-30s %13s  vs %13s   %s\n", r.Axis, open(r.GeometricOpen)+width(r.Geometric, r.Unit), open(r.DynamicalOpen)+width(r.Dynamical, r.Unit), ratio)
 		}
 		fmt.Fprintf(w, "  dynamical gate: %s\n", a.Dynamical)
 	}
@@ -125,11 +125,12 @@ func printLoopCheck(w io.Writer, c *design.LoopCheck) {
 	fmt.Fprintf(w, "fidelity    %.8f (≥ %g: %s), leakage %.2e\n", c.Fidelity, c.MinFidelity, verdict, c.Leakage)
 }
 
+// open marks a width that is only a lower bound.
 func open(b bool) string {
 	if b {
-		return "+"
+		return "≥"
 	}
-	return " "
+	return ""
 }
 
 func width(v float64, unit string) string {
