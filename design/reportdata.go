@@ -48,6 +48,7 @@ func reportData(o *Outcome, w *waveform.Waveform, plan *waveform.Plan, a *analys
 	}
 	d.Verification = &report.Verification{
 		Fidelity:         o.Ideal.Fidelity,
+		Goal:             w.MinFidelity,
 		Leakage:          o.Ideal.Leakage,
 		Adiabaticity:     ad,
 		AdiabaticityNote: "max over the loop of |⟨m|∂ₜH|n⟩|/(Eₘ−Eₙ)² (ideal model)",
@@ -63,12 +64,18 @@ func reportData(o *Outcome, w *waveform.Waveform, plan *waveform.Plan, a *analys
 	for _, b := range o.Budget {
 		d.Budget = append(d.Budget, report.BudgetRow{Term: b.Term, Infidelity: b.Infidelity, Note: b.Note, Total: b.Total})
 	}
-	for _, c := range a.ideal.Checks {
+	// The hardware table holds the hardware limits only; the fidelity and
+	// adiabaticity goals are in the verification summary.
+	for _, c := range w.HardwareChecks() {
 		m := c.Margin
 		if c.Limit != 0 {
 			m = c.Margin / math.Abs(c.Limit)
 		}
-		d.Checks = append(d.Checks, report.CheckRow{Name: c.Name, Value: c.Value, Limit: c.Limit, Margin: m, Unit: c.Unit, Pass: c.Pass})
+		row := report.CheckRow{Name: c.Name, Value: c.Value, Limit: c.Limit, Margin: m, Unit: c.Unit, Pass: c.Pass}
+		if c.Unit == "Hz/s" { // slew rates read best in MHz/µs
+			row.Value, row.Limit, row.Unit = c.Value/1e12, c.Limit/1e12, "MHz/µs"
+		}
+		d.Checks = append(d.Checks, row)
 	}
 	if cmp := a.compare; cmp != nil {
 		d.DynamicalGate = cmp.Dynamical.String()

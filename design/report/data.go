@@ -82,6 +82,8 @@ type Verification struct {
 	// Fidelity is the average gate fidelity with leakage (Pedersen, Møller
 	// and Mølmer, Phys. Lett. A 367, 47 (2007)).
 	Fidelity float64
+	// Goal is the fidelity the design aims at (0: compare with Threshold).
+	Goal float64
 	// Leakage is the population lost from the computational subspace,
 	// averaged over inputs.
 	Leakage float64

@@ -164,11 +164,15 @@ func summarySection(b *bytes.Buffer, d *Data) error {
 	row := func(k, val, note string) {
 		fmt.Fprintf(b, "<tr><td>%s</td><td class=\"num\">%s</td><td>%s</td></tr>\n", esc(k), val, note)
 	}
+	goal, what := v.Goal, "the design goal"
+	if goal == 0 {
+		goal, what = Threshold, "the threshold"
+	}
 	meets := "<span class=\"pass\">meets</span>"
-	if v.Fidelity < Threshold {
+	if v.Fidelity < goal {
 		meets = "<span class=\"fail\">BELOW</span>"
 	}
-	row("Average gate fidelity F", fidelity(v.Fidelity), fmt.Sprintf("1 − F = %s; %s the threshold F&#160;≥&#160;%g", num(1-v.Fidelity, 2), meets, Threshold))
+	row("Average gate fidelity F", fidelity(v.Fidelity), fmt.Sprintf("1 − F = %s; %s %s F&#160;≥&#160;%g", num(1-v.Fidelity, 2), meets, what, goal))
 	row("Leakage", num(v.Leakage, 3), "population leaving the computational levels, averaged over inputs")
 	row("Adiabaticity", num(v.Adiabaticity, 3), esc(v.AdiabaticityNote))
 	row("Gate duration", qty(v.Duration, "s", 4), "")
