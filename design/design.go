@@ -94,7 +94,7 @@ func Design(ctx context.Context, spec *Spec, opt Options) (*Outcome, error) {
 	if err := hardwareError(spec, w); err != nil {
 		return nil, err
 	}
-	a, err := analyse(ctx, w, errorModelOf(spec), sweepsOf(spec), !opt.NoSweeps, opt.Progress, opt.Log)
+	a, err := analyse(ctx, w, errorModelOf(spec), sweepsOf(spec, w.Duration()), !opt.NoSweeps, opt.Progress, opt.Log)
 	if err != nil {
 		return nil, err
 	}
@@ -563,22 +563,32 @@ type sweepPlan struct {
 	mapX, mapY          waveform.Range
 }
 
-func sweepsOf(spec *Spec) sweepPlan {
+// sweepsOf plans the robustness analysis of a gate of the given duration
+// (s). The comparison with the dynamical gate runs along the amplitude
+// error and the two-photon detuning. When the spec sweeps the one-photon
+// detuning, that sweep and the map use it, and the comparison's
+// two-photon axis spans ±1/duration: a two-photon detuning δ adds a phase
+// of order 2πδ·duration, so this range holds the F ≥ 0.999 edge of the
+// geometric gate, and edges beyond it are found by the comparison's
+// outward search.
+func sweepsOf(spec *Spec, duration float64) sweepPlan {
 	s := spec.Sweeps
-	axis := waveform.TwoPhotonAxis
-	if s.DetuningKind == OnePhoton {
-		axis = waveform.OnePhotonAxis
-	}
+	amp := waveform.Range{Axis: waveform.AmplitudeAxis, Min: -s.Amplitude.Span, Max: s.Amplitude.Span, Points: s.Amplitude.Points}
+	det := waveform.Range{Axis: waveform.TwoPhotonAxis, Min: -s.Detuning.Span, Max: s.Detuning.Span, Points: s.Detuning.Points}
 	p := sweepPlan{
-		amplitude: waveform.Range{Axis: waveform.AmplitudeAxis, Min: -s.Amplitude.Span, Max: s.Amplitude.Span, Points: s.Amplitude.Points},
-		detuning:  waveform.Range{Axis: waveform.TwoPhotonAxis, Min: -s.Detuning.Span, Max: s.Detuning.Span, Points: s.Detuning.Points},
-		mapX:      waveform.Range{Axis: waveform.AmplitudeAxis, Min: -s.Amplitude.Span, Max: s.Amplitude.Span, Points: s.MapAmplitude},
-		mapY:      waveform.Range{Axis: axis, Min: -s.Detuning.Span, Max: s.Detuning.Span, Points: s.MapDetuning},
+		amplitude: amp,
+		detuning:  det,
+		mapX:      waveform.Range{Axis: waveform.AmplitudeAxis, Min: amp.Min, Max: amp.Max, Points: s.MapAmplitude},
+		mapY:      waveform.Range{Axis: waveform.TwoPhotonAxis, Min: det.Min, Max: det.Max, Points: s.MapDetuning},
 	}
-	if axis == waveform.OnePhotonAxis {
-		r := p.detuning
-		r.Axis = waveform.OnePhotonAxis
-		p.oneExtra = &r
+	if s.DetuningKind == OnePhoton {
+		one := det
+		one.Axis = waveform.OnePhotonAxis
+		p.oneExtra = &one
+		p.mapY.Axis = waveform.OnePhotonAxis
+		if duration > 0 {
+			p.detuning.Min, p.detuning.Max = -1/duration, 1/duration
+		}
 	}
 	return p
 }

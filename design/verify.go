@@ -100,7 +100,7 @@ func VerifyFile(ctx context.Context, path string, opt VerifyOptions) (*Outcome, 
 		if err != nil {
 			return nil, &InputError{Err: err}
 		}
-		model, sp = errorModelOf(spec), sweepsOf(spec)
+		model, sp = errorModelOf(spec), sweepsOf(spec, w.Duration())
 		title, target, preset = spec.Title, spec.Target.Label, spec.Preset
 	}
 	_ = preset
