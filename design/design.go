@@ -411,7 +411,7 @@ func solve(ctx context.Context, spec *Spec, seed uint64) (*solution, error) {
 			Seed:             seed,
 			TargetInfidelity: spec.Search.TargetInfidelity,
 			MaxEvaluations:   spec.Search.Evaluations,
-			Points:           spec.Search.LoopPoints,
+			Points:           min(shape.Points(), spec.Search.LoopPoints),
 			Ensemble:         ens,
 		}
 		res, err := s.Run(ctx)

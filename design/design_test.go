@@ -57,7 +57,7 @@ func TestDesignDemoGates(t *testing.T) {
 		t.Run(name, func(t *testing.T) {
 			spec := loadDemo(t, name)
 			dir := t.TempDir()
-			out, err := Design(context.Background(), spec, Options{OutDir: dir, NoSweeps: true, NoReport: true})
+			out, err := Design(context.Background(), spec, Options{OutDir: dir, NoSweeps: true})
 			if err != nil {
 				t.Fatalf("design: %v", err)
 			}

@@ -42,16 +42,16 @@ func reportData(o *Outcome, w *waveform.Waveform, plan *waveform.Plan, a *analys
 	if d.Title == "" {
 		d.Title = o.Target + " on " + sc.Name
 	}
-	ad := math.NaN()
+	ad, adNote := math.NaN(), "not applicable: the gate is a cyclic (nonadiabatic) evolution whose pulse areas are exact"
 	if o.Ideal.Adiabaticity != nil {
-		ad = *o.Ideal.Adiabaticity
+		ad, adNote = *o.Ideal.Adiabaticity, "max over the loop of |⟨m|∂ₜH|n⟩|/(Eₘ−Eₙ)² (ideal model)"
 	}
 	d.Verification = &report.Verification{
 		Fidelity:         o.Ideal.Fidelity,
 		Goal:             w.MinFidelity,
 		Leakage:          o.Ideal.Leakage,
 		Adiabaticity:     ad,
-		AdiabaticityNote: "max over the loop of |⟨m|∂ₜH|n⟩|/(Eₘ−Eₙ)² (ideal model)",
+		AdiabaticityNote: adNote,
 		Duration:         w.Duration(),
 		Samples:          w.Len(),
 		SampleRate:       w.Hardware.SampleRate,

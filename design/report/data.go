@@ -88,6 +88,7 @@ type Verification struct {
 	// averaged over inputs.
 	Leakage float64
 	// Adiabaticity is the pipeline's adiabaticity figure (dimensionless;
+	// NaN when it does not apply, as for a cyclic nonadiabatic gate;
 	// smaller means more adiabatic).
 	Adiabaticity float64
 	// AdiabaticityNote says how Adiabaticity is defined; shown beside it.

@@ -174,7 +174,11 @@ func summarySection(b *bytes.Buffer, d *Data) error {
 	}
 	row("Average gate fidelity F", fidelity(v.Fidelity), fmt.Sprintf("1 − F = %s; %s %s F&#160;≥&#160;%g", num(1-v.Fidelity, 2), meets, what, goal))
 	row("Leakage", num(v.Leakage, 3), "population leaving the computational levels, averaged over inputs")
-	row("Adiabaticity", num(v.Adiabaticity, 3), esc(v.AdiabaticityNote))
+	if math.IsNaN(v.Adiabaticity) {
+		row("Adiabaticity", "—", esc(v.AdiabaticityNote))
+	} else {
+		row("Adiabaticity", num(v.Adiabaticity, 3), esc(v.AdiabaticityNote))
+	}
 	row("Gate duration", qty(v.Duration, "s", 4), "")
 	samples := strconv.Itoa(v.Samples)
 	sn := ""

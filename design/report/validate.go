@@ -30,7 +30,7 @@ func validate(d *Data) error {
 		for _, q := range []struct {
 			name string
 			x    float64
-		}{{"Fidelity", v.Fidelity}, {"Leakage", v.Leakage}, {"Adiabaticity", v.Adiabaticity}, {"Duration", v.Duration}, {"SampleRate", v.SampleRate}} {
+		}{{"Fidelity", v.Fidelity}, {"Leakage", v.Leakage}, {"Duration", v.Duration}, {"SampleRate", v.SampleRate}} {
 			if err := finite("Verification."+q.name, q.x); err != nil {
 				return err
 			}
