@@ -137,20 +137,32 @@ func Design(ctx context.Context, spec *Spec, opt Options) (*Outcome, error) {
 	return out, out.err()
 }
 
-// maxTimingRounds bounds how often timeLoop re-times a loop.
-const maxTimingRounds = 8
+// maxTimingRounds bounds how often timeLoop re-times a loop, and
+// timingMargin is the fraction of the allowed infidelity 1 − F_goal that
+// the timing aims at.
+const (
+	maxTimingRounds = 10
+	timingMargin    = 0.5
+)
 
-// timeLoop times and samples the plan. Adiabatic plans start from
-// waveform.DefaultAdiabaticity; while the ideal-model fidelity of the
-// sampled waveform misses the goal, the adiabaticity goal α is tightened
-// (the non-adiabatic error of a smooth schedule falls at least as fast as
-// α², so α is scaled by 0.7·√((1−F_goal)/(1−F)), kept between ×0.25 and
-// ×0.9) and the loop re-timed. When a tighter goal breaks a hardware limit
-// (the gate gets too long), α is bisected geometrically between the last
-// waveform that fits and the one that does not. It stops when the goal is
-// met or after maxTimingRounds, and returns the waveform with the best
-// fidelity among those that fit the hardware (or the first one built, if
-// none fits); its checks tell whether it meets the goal.
+// timeLoop times and samples the plan. A cyclic plan is timed once. An
+// adiabatic plan starts from waveform.DefaultAdiabaticity and looks for
+// the loosest adiabaticity goal α (the shortest gate) whose sampled
+// waveform meets the fidelity goal, with half the allowed infidelity kept
+// as a margin (timingMargin), in the ideal model within the hardware
+// limits:
+//
+//   - while the fidelity misses the goal, α is scaled by
+//     0.7·√((1−F_goal)/(1−F)), kept between ×0.25 and ×0.9 (the
+//     non-adiabatic error of a smooth schedule falls about as α²);
+//   - once a passing α and a looser failing one (fidelity too low, or a
+//     tighter one breaking a hardware limit such as the longest gate) are
+//     known, α is bisected geometrically between them until they are
+//     within 10 %.
+//
+// It returns the shortest passing waveform, or, when none passes within
+// maxTimingRounds, the one with the best fidelity among those that fit the
+// hardware (or the first built, if none fits); its checks tell the rest.
 func timeLoop(spec *Spec, plan *waveform.Plan, log io.Writer) (*waveform.Waveform, error) {
 	hw := hardwareOf(spec)
 	adiabatic := false
@@ -161,29 +173,33 @@ func timeLoop(spec *Spec, plan *waveform.Plan, log io.Writer) (*waveform.Wavefor
 	if plan.MinFidelity != 0 {
 		goal = plan.MinFidelity
 	}
+	// Time for half the allowed infidelity, leaving a margin for what the
+	// ideal model leaves out.
+	goal = 1 - timingMargin*(1-goal)
 	var (
-		best       *waveform.Waveform
+		pass       *waveform.Waveform // shortest waveform meeting the goal
+		best       *waveform.Waveform // best fidelity within the hardware
+		first      *waveform.Waveform
 		bestF      = -1.0
-		fits       = math.NaN() // loosest α known to fit the hardware
-		tooTight   = math.NaN() // tightest α known to break it
+		passAlpha  = math.NaN() // loosest α that passed
+		looseFail  = math.NaN() // tightest α above passAlpha that missed the fidelity goal
+		tightBreak = math.NaN() // loosest α that broke a hardware limit
 		alpha      = waveform.DefaultAdiabaticity
-		firstBuilt *waveform.Waveform
 	)
 	for round := 0; round < maxTimingRounds; round++ {
 		plan.Adiabaticity = alpha
 		w, err := waveform.Build(plan, hw)
-		if err != nil {
-			var le *waveform.LimitError
-			if !errors.As(err, &le) {
-				return nil, fmt.Errorf("spec %s: timing and sampling: %w", spec.File, err)
-			}
-			if firstBuilt == nil && best == nil && round == 0 {
-				return nil, &InfeasibleError{Err: fmt.Errorf("spec %s: %w", spec.File, err)}
-			}
-			tooTight = alpha
-		} else {
-			if firstBuilt == nil {
-				firstBuilt = w
+		var le *waveform.LimitError
+		switch {
+		case err != nil && !errors.As(err, &le):
+			return nil, fmt.Errorf("spec %s: timing and sampling: %w", spec.File, err)
+		case err != nil && round == 0:
+			return nil, &InfeasibleError{Err: fmt.Errorf("spec %s: %w", spec.File, err)}
+		case err != nil:
+			tightBreak = math.Max(nanTo(tightBreak, 0), alpha)
+		default:
+			if first == nil {
+				first = w
 			}
 			if !adiabatic {
 				return w, nil
@@ -192,40 +208,58 @@ func timeLoop(spec *Spec, plan *waveform.Plan, log io.Writer) (*waveform.Wavefor
 			if err != nil {
 				return nil, fmt.Errorf("spec %s: verification: %w", spec.File, err)
 			}
-			if !hardwareOK(v) {
-				tooTight = alpha
-			} else {
-				fits = alpha
+			switch {
+			case !hardwareOK(v):
+				tightBreak = math.Max(nanTo(tightBreak, 0), alpha)
+			case v.Fidelity >= goal:
+				if math.IsNaN(passAlpha) || alpha > passAlpha {
+					pass, passAlpha = w, alpha
+				}
+			default:
 				if v.Fidelity > bestF {
 					best, bestF = w, v.Fidelity
 				}
-				if v.Fidelity >= goal {
-					return w, nil
-				}
-				f := 0.7 * math.Sqrt((1-goal)/(1-v.Fidelity))
-				f = math.Max(0.25, math.Min(0.9, f))
+				looseFail = math.Min(nanTo(looseFail, math.Inf(1)), alpha)
 				logf(log, "fidelity %.6f misses %.4g at adiabaticity goal %.3g (%s); re-timing",
 					v.Fidelity, goal, alpha, FormatQuantity(w.Duration(), Time))
-				alpha *= f
 			}
 		}
-		if !math.IsNaN(tooTight) {
-			if math.IsNaN(fits) {
-				break
+		// Next α.
+		switch {
+		case !math.IsNaN(passAlpha) && !math.IsNaN(looseFail):
+			if looseFail/passAlpha < 1.1 {
+				return pass, nil
 			}
-			alpha = math.Sqrt(fits * tooTight)
-			if fits/tooTight < 1.02 {
-				break
+			alpha = math.Sqrt(passAlpha * looseFail)
+		case !math.IsNaN(passAlpha):
+			return pass, nil // the default goal already passes
+		case !math.IsNaN(tightBreak) && !math.IsNaN(looseFail):
+			if looseFail/tightBreak < 1.02 {
+				round = maxTimingRounds
 			}
+			alpha = math.Sqrt(tightBreak * looseFail)
+		case !math.IsNaN(tightBreak):
+			round = maxTimingRounds // even the first goal breaks the hardware
+		default:
+			f := 0.7 * math.Sqrt((1-goal)/(1-bestF))
+			alpha *= math.Max(0.25, math.Min(0.9, f))
 		}
 	}
-	if best != nil {
-		if bestF < goal {
-			logf(log, "the fidelity goal %.4g is out of reach within the hardware limits; best %.6f", goal, bestF)
-		}
+	switch {
+	case pass != nil:
+		return pass, nil
+	case best != nil:
+		logf(log, "the fidelity goal %.4g is out of reach within the hardware limits; best %.6f", goal, bestF)
 		return best, nil
 	}
-	return firstBuilt, nil
+	return first, nil
+}
+
+func nanTo(x, v float64) float64 {
+	if math.IsNaN(x) {
+		return v
+	}
+	return x
 }
 
 // hardwareError refuses a waveform that breaks a hardware limit: no file
