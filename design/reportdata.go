@@ -83,6 +83,7 @@ func reportData(o *Outcome, w *waveform.Waveform, plan *waveform.Plan, a *analys
 			d.Advantage = append(d.Advantage, report.AdvantageRow{
 				Axis: r.Axis.String(), Unit: r.Axis.Unit(),
 				Geometric: r.Geometric.Width, Dynamical: r.Dynamical.Width, Ratio: r.Ratio,
+				GeometricOpen: r.Geometric.Open(), DynamicalOpen: r.Dynamical.Open(),
 			})
 			g, dy := cmp.Geometric[i], cmp.DynamicalSweeps[i]
 			d.Sweeps = append(d.Sweeps, report.Sweep{

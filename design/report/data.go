@@ -75,6 +75,10 @@ type AdvantageRow struct {
 	Geometric, Dynamical float64
 	// Ratio is Geometric/Dynamical (+Inf when Dynamical is 0).
 	Ratio float64
+	// GeometricOpen and DynamicalOpen mark widths that are only lower
+	// bounds (the edge lies beyond the range examined); they are shown
+	// with ≥.
+	GeometricOpen, DynamicalOpen bool
 }
 
 // Verification summarises the verification of the gate.

@@ -135,18 +135,20 @@ func advantageSection(b *bytes.Buffer, d *Data) error {
 		default:
 			word = "narrower robust region"
 		}
-		detail = fmt.Sprintf("geometric %s · dynamical %s", qty(r.Geometric, r.Unit, 3), qty(r.Dynamical, r.Unit, 3))
+		geo, dyn, rat := r.widths()
+		detail = fmt.Sprintf("geometric %s · dynamical %s", geo, dyn)
 		fmt.Fprintf(b, "<div class=\"card\"><p class=\"axis\">%s</p><p class=\"big\">%s</p><p class=\"word\">%s</p><p class=\"detail\">%s</p></div>\n",
-			esc(r.Axis), ratio(r.Ratio), esc(word), detail)
+			esc(r.Axis), rat, esc(word), detail)
 	}
 	b.WriteString("</div>\n")
 	b.WriteString("<table id=\"tab-advantage\">\n<thead><tr><th>Error axis</th><th class=\"num\">Geometric gate</th><th class=\"num\">Dynamical gate</th><th class=\"num\">Ratio</th></tr></thead>\n<tbody>\n")
 	for _, r := range d.Advantage {
+		geo, dyn, rat := r.widths()
 		fmt.Fprintf(b, "<tr><td>%s</td><td class=\"num\">%s</td><td class=\"num\">%s</td><td class=\"num strong\">%s</td></tr>\n",
-			esc(r.Axis), qty(r.Geometric, r.Unit, 3), qty(r.Dynamical, r.Unit, 3), ratio(r.Ratio))
+			esc(r.Axis), geo, dyn, rat)
 	}
 	b.WriteString("</tbody>\n</table>\n")
-	note := "Widths are measured with the other errors off."
+	note := "Widths are measured with the other errors off; ≥ marks a width whose edge lies beyond the range examined (a lower bound)."
 	if d.DynamicalGate != "" {
 		note += " Dynamical gate: " + d.DynamicalGate + "."
 	}
@@ -183,7 +185,7 @@ func summarySection(b *bytes.Buffer, d *Data) error {
 	samples := strconv.Itoa(v.Samples)
 	sn := ""
 	if v.SampleRate > 0 {
-		sn = "at " + qty(v.SampleRate, "Hz", 4)
+		sn = "at " + qty(v.SampleRate, "S/s", 4)
 	}
 	row("Samples per channel", samples, sn)
 	if len(d.Checks) > 0 {
@@ -357,4 +359,22 @@ func provenanceSection(b *bytes.Buffer, d *Data) error {
 	b.WriteString("</tbody>\n</table>\n")
 	b.WriteString("<p class=\"note\">The same specification and seed give the same waveforms and a byte-identical report.</p>\n")
 	return nil
+}
+
+// widths formats the row's widths and ratio, marking lower bounds with ≥.
+func (r AdvantageRow) widths() (geo, dyn, rat string) {
+	geo, dyn, rat = qty(r.Geometric, r.Unit, 3), qty(r.Dynamical, r.Unit, 3), ratio(r.Ratio)
+	if r.GeometricOpen {
+		geo = "≥&#160;" + geo
+		if !r.DynamicalOpen {
+			rat = "≥&#160;" + rat
+		}
+	}
+	if r.DynamicalOpen {
+		dyn = "≥&#160;" + dyn
+		if !r.GeometricOpen {
+			rat = "≤&#160;" + rat
+		}
+	}
+	return geo, dyn, rat
 }

@@ -141,6 +141,14 @@ func unitScale(unit string, maxAbs float64) (factor float64, shown string) {
 			}
 		}
 		return 1, "Hz"
+	case "S/s":
+		steps = []step{{1e-9, "GS/s"}, {1e-6, "MS/s"}, {1e-3, "kS/s"}, {1, "S/s"}}
+		for _, s := range steps {
+			if maxAbs*s.f >= 1 {
+				return s.f, s.p
+			}
+		}
+		return 1, "S/s"
 	case "s":
 		steps = []step{{1, "s"}, {1e3, "ms"}, {1e6, "µs"}, {1e9, "ns"}}
 		for _, s := range steps {
