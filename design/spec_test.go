@@ -128,7 +128,7 @@ func TestDemoValues(t *testing.T) {
 		t.Errorf("errors %+v", e)
 	}
 	w := s.Sweeps
-	if w.Amplitude != (Sweep{0.1, 41}) || w.Detuning != (Sweep{2e6, 41}) || w.DetuningKind != OnePhoton || w.MapAmplitude != 41 || w.MapDetuning != 41 {
+	if w.Amplitude != (Sweep{0.1, 41}) || w.Detuning != (Sweep{5e4, 41}) || w.DetuningKind != TwoPhoton || w.MapAmplitude != 41 || w.MapDetuning != 41 {
 		t.Errorf("sweeps %+v", w)
 	}
 }
