@@ -220,7 +220,7 @@ func timeLoop(spec *Spec, plan *waveform.Plan, log io.Writer) (*waveform.Wavefor
 					best, bestF = w, v.Fidelity
 				}
 				looseFail = math.Min(nanTo(looseFail, math.Inf(1)), alpha)
-				logf(log, "fidelity %.6f misses %.4g at adiabaticity goal %.3g (%s); re-timing",
+				logf(log, "fidelity %.6f misses the timing target %.6g at adiabaticity goal %.3g (%s); re-timing",
 					v.Fidelity, goal, alpha, FormatQuantity(w.Duration(), Time))
 			}
 		}
@@ -249,7 +249,7 @@ func timeLoop(spec *Spec, plan *waveform.Plan, log io.Writer) (*waveform.Wavefor
 	case pass != nil:
 		return pass, nil
 	case best != nil:
-		logf(log, "the fidelity goal %.4g is out of reach within the hardware limits; best %.6f", goal, bestF)
+		logf(log, "the timing target %.6g is out of reach within the hardware limits; keeping the best waveform, F = %.6f", goal, bestF)
 		return best, nil
 	}
 	return first, nil
