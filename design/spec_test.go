@@ -335,7 +335,7 @@ func TestStarterSpecs(t *testing.T) {
 		}
 		switch p {
 		case "custom":
-			if s.Preset != "" || s.Hardware.MaxRabi[2] != 14e6 || s.Scheme.Channels[2].Factor != 0.7 || s.Search.Family != Polygon || s.Errors.Amplitude[2] != -0.01 {
+			if s.Preset != "" || s.Hardware.MaxRabi[2] != 14e6 || s.Scheme.Channels[2].Factor != 0.7 || s.Search.Family != Fourier || s.Errors.Amplitude[2] != -0.01 {
 				t.Errorf("custom starter decoded as %+v", s)
 			}
 		default:
