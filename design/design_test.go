@@ -306,3 +306,27 @@ func TestDesignHardwareImpossible(t *testing.T) {
 		t.Errorf("refused design left %d files", len(entries))
 	}
 }
+
+// TestStartersDesign designs the gate of every starter spec: what
+// `loopgate starter` writes must work as written.
+func TestStartersDesign(t *testing.T) {
+	for _, p := range StarterPresets() {
+		t.Run(p, func(t *testing.T) {
+			src, err := StarterSpec(p)
+			if err != nil {
+				t.Fatal(err)
+			}
+			spec, err := ParseSpec(src, p+".yaml")
+			if err != nil {
+				t.Fatal(err)
+			}
+			out, err := Design(context.Background(), spec, Options{OutDir: t.TempDir(), NoSweeps: true, NoReport: true})
+			if err != nil {
+				t.Fatalf("design: %v", err)
+			}
+			if out.Ideal.Fidelity < 0.9999 {
+				t.Errorf("fidelity %.6f < 0.9999", out.Ideal.Fidelity)
+			}
+		})
+	}
+}

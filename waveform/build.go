@@ -253,9 +253,12 @@ func Build(p *Plan, hw Hardware) (*Waveform, error) {
 	}
 	g := hw.Granularity
 	n := (n0 + g - 1) / g * g
-	limit := min(hw.MaxSamples, MaxSampleLimit)
+	limit, what := hw.MaxSamples, "sample count"
+	if MaxSampleLimit < limit {
+		limit, what = MaxSampleLimit, "sample count (waveform file bound)"
+	}
 	if n0 > limit || n > limit {
-		return nil, &LimitError{Check: newCheck("sample count", float64(n), float64(limit), "", boundMax)}
+		return nil, &LimitError{Check: newCheck(what, float64(n), float64(limit), "", boundMax)}
 	}
 	w := &Waveform{
 		Scheme:       sc,

@@ -87,9 +87,11 @@ const (
 	// DefaultMinFidelity is the fidelity goal used when a Plan gives none.
 	DefaultMinFidelity = 0.9999
 	// MaxSampleLimit is the largest sample count this package builds or
-	// reads, whatever the hardware allows: 2^24 samples per channel (the
-	// spec bound; memory is bounded separately before allocation).
-	MaxSampleLimit = 1 << 24
+	// reads, whatever the hardware allows: 2^20 samples per channel (1 ms
+	// at 1 GS/s, far beyond any holonomic gate), which keeps a waveform
+	// file below MaxFileBytes. Hardware.MaxSamples may be larger (the AWG
+	// may hold more); Build then stops at this bound.
+	MaxSampleLimit = 1 << 20
 	// MaxDACBits is the largest DAC resolution supported.
 	MaxDACBits = 24
 	// MaxSegments is the largest number of segments in a plan or file.
@@ -148,8 +150,8 @@ func (h *Hardware) Validate(nch int) error {
 	if h.Granularity < 1 || h.Granularity > MaxSampleLimit {
 		return fmt.Errorf("hardware: granularity %d; need 1 to %d", h.Granularity, MaxSampleLimit)
 	}
-	if h.MaxSamples < 1 || h.MaxSamples > MaxSampleLimit {
-		return fmt.Errorf("hardware: maximum sample count %d; need 1 to %d", h.MaxSamples, MaxSampleLimit)
+	if h.MaxSamples < 1 {
+		return fmt.Errorf("hardware: maximum sample count %d; need at least 1", h.MaxSamples)
 	}
 	if h.DACBits < 2 || h.DACBits > MaxDACBits {
 		return fmt.Errorf("hardware: DAC resolution %d bits; need 2 to %d", h.DACBits, MaxDACBits)
