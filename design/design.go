@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"math/cmplx"
 	"path/filepath"
 	"strings"
 
@@ -441,6 +442,7 @@ func solve(ctx context.Context, spec *Spec, seed uint64) (*solution, error) {
 			Scheme:           sc,
 			Target:           target,
 			Shape:            shape,
+			Penalty:          amplitudePenalty(sc, shape, spec.Hardware.MaxRabi),
 			Restarts:         spec.Search.Restarts,
 			Seed:             seed,
 			TargetInfidelity: spec.Search.TargetInfidelity,
@@ -475,6 +477,67 @@ func solve(ctx context.Context, spec *Spec, seed uint64) (*solution, error) {
 		}
 		sum.Robust = robustSummary(res.Robust)
 		return &solution{plan: plan, family: family, params: res.Params, summary: sum}, nil
+	}
+}
+
+// penaltyPoints is the number of loop points amplitudePenalty samples, and
+// minAmplitudeShare the share of the strongest channel's Rabi limit below
+// which it starts to penalise.
+const (
+	penaltyPoints     = 64
+	minAmplitudeShare = 0.5
+)
+
+// amplitudePenalty returns the hardware penalty of the adiabatic search.
+// A loop of unit-scale drive vectors u(s) runs at the peak amplitude
+// A = min_c MaxRabi_c / max_s |u_c(s)|: a channel with a low Rabi limit
+// that the loop drives hard slows the whole gate down. Loops with
+// A ≥ minAmplitudeShare · max_c MaxRabi_c cost nothing; below that the
+// penalty grows as the square of the shortfall (relative to the strongest
+// channel). With equal limits no loop is penalised, since |u_c| ≤ 1.
+// It returns nil for spin schemes, whose field magnitude is fixed. The
+// penalty keeps its own copy of the shape, so the search must call it
+// from one goroutine at a time (it does).
+func amplitudePenalty(sc *holonomy.Scheme, shape optimize.Shape, maxRabi []float64) func([]float64) float64 {
+	if shape.Control().Kind == optimize.FieldSphere || len(maxRabi) != len(sc.Channels) {
+		return nil
+	}
+	ref := 0.0
+	for _, r := range maxRabi {
+		ref = math.Max(ref, r)
+	}
+	equal := true
+	for _, r := range maxRabi {
+		equal = equal && r == ref
+	}
+	if equal || ref <= 0 {
+		return nil
+	}
+	own := shape.Clone()
+	p := sc.NewPoint()
+	peak := make([]float64, len(sc.Channels))
+	return func(x []float64) float64 {
+		own.SetParams(x)
+		for c := range peak {
+			peak[c] = 0
+		}
+		for j := 0; j < penaltyPoints; j++ {
+			own.Point(float64(j)/penaltyPoints, p)
+			for c, d := range p.Drive {
+				peak[c] = math.Max(peak[c], cmplx.Abs(d))
+			}
+		}
+		amp := math.Inf(1)
+		for c, u := range peak {
+			if u > 0 {
+				amp = math.Min(amp, maxRabi[c]/u)
+			}
+		}
+		short := minAmplitudeShare - amp/ref
+		if short <= 0 {
+			return 0
+		}
+		return short * short
 	}
 }
 

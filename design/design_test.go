@@ -12,6 +12,8 @@ import (
 
 	"github.com/xeipuuv/gojsonschema"
 
+	"github.com/loopgate/loopgate/holonomy"
+	"github.com/loopgate/loopgate/optimize"
 	"github.com/loopgate/loopgate/schemas"
 )
 
@@ -328,5 +330,32 @@ func TestStartersDesign(t *testing.T) {
 				t.Errorf("fidelity %.6f < 0.9999", out.Ideal.Fidelity)
 			}
 		})
+	}
+}
+
+// TestAmplitudePenalty checks the search's hardware penalty: none with
+// equal Rabi limits, none for a loop that stays at the base point (only
+// the auxiliary channel on), and a positive one for a loop that drives a
+// channel whose limit is a tenth of the others' at full strength.
+func TestAmplitudePenalty(t *testing.T) {
+	sc := holonomy.Tripod()
+	sp, err := optimize.NewDriveSphere(sc, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	shape := optimize.NewFourier(sp, 1)
+	if amplitudePenalty(sc, shape, []float64{20e6, 20e6, 20e6}) != nil {
+		t.Error("equal limits gave a penalty")
+	}
+	pen := amplitudePenalty(sc, shape, []float64{20e6, 2e6, 20e6})
+	x := make([]float64, shape.NumParams())
+	if v := pen(x); v != 0 {
+		t.Errorf("base-point loop: penalty %g, want 0", v)
+	}
+	// Move the loop onto channel p1 (coordinates Re w1, Im w1 are 2 and 3
+	// of each 6-vector of Fourier coefficients).
+	x[2] = 3
+	if v := pen(x); !(v > 0) {
+		t.Errorf("loop through the weak channel: penalty %g, want > 0", v)
 	}
 }
