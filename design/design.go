@@ -376,8 +376,14 @@ func solve(ctx context.Context, spec *Spec, seed uint64) (*solution, error) {
 	sc, target := spec.Scheme, spec.Target.U
 	var ens optimize.Ensemble
 	if spec.Search.Robust.Enabled() {
-		det := 2 * math.Pi * spec.Search.Robust.Detuning
-		ens = robustEnsemble(spec, spec.Search.Robust.Amplitude, det)
+		// The search works at unit scale, where the peak Rabi frequency
+		// is 1: express the detuning error in units of the largest Rabi
+		// limit, the amplitude the timing stage aims at.
+		ref := 0.0
+		for _, r := range spec.Hardware.MaxRabi {
+			ref = math.Max(ref, r)
+		}
+		ens = robustEnsemble(spec, spec.Search.Robust.Amplitude, spec.Search.Robust.Detuning/ref)
 	}
 	switch spec.Method {
 	case Nonadiabatic:
@@ -554,7 +560,8 @@ func searchError(spec *Spec, err error) error {
 }
 
 // robustEnsemble is the 3×3 grid of amplitude errors ±amp and detuning
-// errors ±det (rad/s) on the levels the spec's robust detuning kind moves.
+// errors ±det (in units of the peak Rabi frequency, the search's scale) on
+// the levels the spec's robust detuning kind moves.
 func robustEnsemble(spec *Spec, amp, det float64) optimize.Ensemble {
 	sc := spec.Scheme
 	levels := spec.Excited

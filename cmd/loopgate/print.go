@@ -30,7 +30,11 @@ func printOutcome(w io.Writer, o *design.Outcome) {
 			fmt.Fprintf(w, "            note: %s\n", f)
 		}
 		if r := s.Robust; r != nil {
-			fmt.Fprintf(w, "robust      mean infidelity over %d error cases: %.2e nominal → %.2e robust\n", r.Members, r.NominalMean, r.RobustMean)
+			fmt.Fprintf(w, "robust      mean infidelity over %d error cases: %.2e nominal → %.2e robust (worst %.2e → %.2e)\n",
+				r.Members, r.NominalMean, r.RobustMean, r.NominalWorst, r.RobustWorst)
+			if r.Insensitive {
+				fmt.Fprintln(w, "            the holonomy does not depend on these errors; the nominal loop is kept")
+			}
 		}
 	}
 	fmt.Fprintf(w, "waveform    %d samples, %s at %s\n", o.Samples, si(o.Duration, "s"), si(o.SampleRate, "S/s"))
