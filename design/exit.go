@@ -22,6 +22,7 @@ type InputError struct{ Err error }
 
 // Error returns the message.
 func (e *InputError) Error() string { return e.Err.Error() }
+
 // Unwrap returns the underlying error.
 func (e *InputError) Unwrap() error { return e.Err }
 
@@ -30,6 +31,7 @@ type InfeasibleError struct{ Err error }
 
 // Error returns the message.
 func (e *InfeasibleError) Error() string { return e.Err.Error() }
+
 // Unwrap returns the underlying error.
 func (e *InfeasibleError) Unwrap() error { return e.Err }
 
@@ -38,6 +40,7 @@ type OutputError struct{ Err error }
 
 // Error returns the message.
 func (e *OutputError) Error() string { return e.Err.Error() }
+
 // Unwrap returns the underlying error.
 func (e *OutputError) Unwrap() error { return e.Err }
 
