@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"math"
 	"os"
 
 	"github.com/loopgate/loopgate/waveform"
@@ -19,6 +20,8 @@ type ErrorFlags struct {
 	Decay     string // decay of the excited levels (Γ/2π in Hz or Γ in /s)
 	Dephasing string // qubit dephasing (γφ/2π in Hz or γφ in /s)
 	RiseTime  string // 10–90 % rise time of the analog output
+	Filter    string // low-pass shape: none, gaussian or first-order
+	PhaseStep string // drive-phase resolution (an angle)
 }
 
 // apply parses the flags into m.
@@ -49,6 +52,30 @@ func (f ErrorFlags) apply(m *waveform.ErrorModel) error {
 		if err := set(s.flag, s.text, s.dim, s.dst); err != nil {
 			return err
 		}
+	}
+	if f.PhaseStep != "" {
+		v, err := ParseQuantity(f.PhaseStep, Angle)
+		if err != nil {
+			return &InputError{Err: fmt.Errorf("flag --phase-step: %w", err)}
+		}
+		if v < 0 || v > math.Pi {
+			return &InputError{Err: fmt.Errorf("flag --phase-step: %s; need 0 to 180 deg", f.PhaseStep)}
+		}
+		m.PhaseStep = v
+	}
+	switch f.Filter {
+	case "":
+	case "none":
+		m.RiseTime = 0
+	case "gaussian":
+		m.Filter = waveform.GaussianFilter
+	case "first-order":
+		m.Filter = waveform.FirstOrderFilter
+	default:
+		return &InputError{Err: fmt.Errorf("flag --filter: %q; expected none, gaussian or first-order", f.Filter)}
+	}
+	if f.Filter != "" && f.Filter != "none" && m.RiseTime == 0 {
+		return &InputError{Err: fmt.Errorf("flag --filter %s needs a rise time: give --rise-time", f.Filter)}
 	}
 	if f.Amplitude != "" {
 		m.ChannelErrors = nil

@@ -45,6 +45,8 @@ func TestCommands(t *testing.T) {
 		{"verify", []string{"verify", filepath.Join(dir, "waveform.json"), "--no-sweeps", "--json"}, 0, `"reproduced": true`},
 		{"verify bad flag value", []string{"verify", filepath.Join(dir, "waveform.json"), "--amplitude-error", "2 MHz"}, design.ExitBadInput, ""},
 		{"verify directory", []string{"verify", dir}, design.ExitBadInput, ""},
+		{"verify filter", []string{"verify", filepath.Join(dir, "waveform.json"), "--no-sweeps", "--rise-time", "5 ns", "--filter", "first-order", "--phase-step", "pi/256"}, 0, "phase resolution"},
+		{"verify bad filter", []string{"verify", filepath.Join(dir, "waveform.json"), "--filter", "boxcar"}, design.ExitBadInput, ""},
 		{"check", []string{"check", filepath.Join(dir, "loop.json")}, 0, "pass"},
 		{"check other target", []string{"check", filepath.Join(dir, "loop.json"), "--target", "Z"}, design.ExitChecks, "FAIL"},
 	}

@@ -180,6 +180,7 @@ re-runs every fidelity, adiabaticity and hardware check. The error model stored
 in the file is used unless flags override its terms.`,
 		Example: `  loopgate verify out/waveform.json
   loopgate verify out/waveform.json --amplitude-error 2% --report out/verify.html
+  loopgate verify out/waveform.json --rise-time "5 ns" --filter first-order --phase-step "pi/256"
   loopgate verify out/waveform.json --json`,
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
@@ -206,6 +207,8 @@ in the file is used unless flags override its terms.`,
 	f.StringVar(&errs.Decay, "decay", "", `decay of the excited levels, Γ/2π in Hz or Γ in /s`)
 	f.StringVar(&errs.Dephasing, "dephasing", "", `qubit dephasing, γφ/2π in Hz or γφ in /s`)
 	f.StringVar(&errs.RiseTime, "rise-time", "", `analog bandwidth as a 10–90 % rise time, e.g. "2 ns"`)
+	f.StringVar(&errs.Filter, "filter", "", `low-pass shape for --rise-time: none, gaussian or first-order`)
+	f.StringVar(&errs.PhaseStep, "phase-step", "", `drive-phase resolution, e.g. "1.4 deg" or "pi/128"`)
 	return cmd
 }
 
