@@ -822,15 +822,7 @@ func (b *builder) clusterPhase(w *Waveform, nr, n int) (total, loop float64, err
 	dt := 1 / b.hw.SampleRate
 	pt := b.pt
 	set := func(dst *holonomy.Mat, k int) {
-		for c := range pt.Drive {
-			pt.Drive[c] = complex(2*math.Pi*w.I[c][k], 2*math.Pi*w.Q[c][k])
-		}
-		for l := range pt.Detuning {
-			pt.Detuning[l] = 0
-			if w.Detuning[l] != nil {
-				pt.Detuning[l] = 2 * math.Pi * w.Detuning[l][k]
-			}
-		}
+		w.unquantizedPoint(k, pt)
 		b.sc.Hamiltonian(dst, pt)
 	}
 	dim := b.sc.Dim()

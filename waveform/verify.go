@@ -136,15 +136,7 @@ func (w *Waveform) MeasureAdiabaticity() (float64, error) {
 	h, hp, hm := holonomy.NewMat(n, n), holonomy.NewMat(n, n), holonomy.NewMat(n, n)
 	pt := sc.NewPoint()
 	set := func(dst *holonomy.Mat, k int) {
-		for c := range pt.Drive {
-			pt.Drive[c] = complex(2*math.Pi*w.I[c][k], 2*math.Pi*w.Q[c][k])
-		}
-		for l := range pt.Detuning {
-			pt.Detuning[l] = 0
-			if w.Detuning[l] != nil {
-				pt.Detuning[l] = 2 * math.Pi * w.Detuning[l][k]
-			}
-		}
+		w.unquantizedPoint(k, pt)
 		sc.Hamiltonian(dst, pt)
 	}
 	alpha := math.NaN()
@@ -186,4 +178,19 @@ func (w *Waveform) MeasureAdiabaticity() (float64, error) {
 		}
 	}
 	return alpha, nil
+}
+
+// unquantizedPoint writes the control point of sample k from the
+// unquantised samples into pt (rad/s): drives 2π(I + iQ) and the
+// controlled detuning tracks (zero for levels without one).
+func (w *Waveform) unquantizedPoint(k int, pt holonomy.Point) {
+	for c := range pt.Drive {
+		pt.Drive[c] = complex(2*math.Pi*w.I[c][k], 2*math.Pi*w.Q[c][k])
+	}
+	for l := range pt.Detuning {
+		pt.Detuning[l] = 0
+		if w.Detuning[l] != nil {
+			pt.Detuning[l] = 2 * math.Pi * w.Detuning[l][k]
+		}
+	}
 }

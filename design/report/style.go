@@ -135,30 +135,20 @@ func unitScale(unit string, maxAbs float64) (factor float64, shown string) {
 	switch unit {
 	case "Hz":
 		steps = []step{{1e-9, "GHz"}, {1e-6, "MHz"}, {1e-3, "kHz"}, {1, "Hz"}}
-		for _, s := range steps {
-			if maxAbs*s.f >= 1 {
-				return s.f, s.p
-			}
-		}
-		return 1, "Hz"
 	case "S/s":
 		steps = []step{{1e-9, "GS/s"}, {1e-6, "MS/s"}, {1e-3, "kS/s"}, {1, "S/s"}}
-		for _, s := range steps {
-			if maxAbs*s.f >= 1 {
-				return s.f, s.p
-			}
-		}
-		return 1, "S/s"
 	case "s":
 		steps = []step{{1, "s"}, {1e3, "ms"}, {1e6, "µs"}, {1e9, "ns"}}
-		for _, s := range steps {
-			if maxAbs*s.f >= 1 {
-				return s.f, s.p
-			}
-		}
-		return 1e9, "ns"
+	default:
+		return 1, unit
 	}
-	return 1, unit
+	for _, s := range steps {
+		if maxAbs*s.f >= 1 {
+			return s.f, s.p
+		}
+	}
+	last := steps[len(steps)-1]
+	return last.f, last.p
 }
 
 // axisLabel joins a quantity name and a unit: "detuning δ (kHz)".
