@@ -91,9 +91,19 @@ func Design(ctx context.Context, spec *Spec, opt Options) (*Outcome, error) {
 		return nil, err
 	}
 	logf(opt.Log, "sampled %d samples (%.4g s) at %s", w.Len(), w.Duration(), FormatQuantity(w.Hardware.SampleRate, SampleRate))
+	for _, sp := range w.Spans {
+		if sp.Kind == waveform.Adiabatic && (sol.summary.MinGap == 0 || sp.MinGap < sol.summary.MinGap) {
+			sol.summary.MinGap = sp.MinGap
+		}
+	}
 
 	if err := hardwareError(spec, w); err != nil {
 		return nil, err
+	}
+	if r := sol.summary.Robust; r != nil {
+		if err := simulateEnsemble(spec, w, r); err != nil {
+			return nil, err
+		}
 	}
 	a, err := analyse(ctx, w, errorModelOf(spec), sweepsOf(spec, w.Duration()), !opt.NoSweeps, opt.Progress, opt.Log)
 	if err != nil {
@@ -138,32 +148,37 @@ func Design(ctx context.Context, spec *Spec, opt Options) (*Outcome, error) {
 	return out, out.err()
 }
 
-// maxTimingRounds bounds how often timeLoop re-times a loop, and
-// timingMargin is the fraction of the allowed infidelity 1 − F_goal that
-// the timing aims at.
+// Timing search parameters: at most maxTimingRounds builds; the timing
+// aims at timingMargin of the allowed infidelity 1 − F_goal; adiabaticity
+// goals are kept at or below maxAdiabaticity.
 const (
-	maxTimingRounds = 10
+	maxTimingRounds = 12
 	timingMargin    = 0.5
+	maxAdiabaticity = 0.5
 )
 
-// timeLoop times and samples the plan. A cyclic plan is timed once. An
-// adiabatic plan starts from waveform.DefaultAdiabaticity and looks for
-// the loosest adiabaticity goal α (the shortest gate) whose sampled
-// waveform meets the fidelity goal, with half the allowed infidelity kept
-// as a margin (timingMargin), in the ideal model within the hardware
-// limits:
+// timeLoop times and samples the plan. A cyclic plan is timed once. For
+// an adiabatic plan it searches the adiabaticity goal α (larger α, shorter
+// gate) for the loosest one whose sampled waveform, in the ideal model,
+// meets the fidelity goal with half the allowed infidelity kept as a
+// margin (timingMargin) and passes every hardware check. Each trial is
+// classed as
 //
-//   - while the fidelity misses the goal, α is scaled by
-//     0.7·√((1−F_goal)/(1−F)), kept between ×0.25 and ×0.9 (the
-//     non-adiabatic error of a smooth schedule falls about as α²);
-//   - once a passing α and a looser failing one (fidelity too low, or a
-//     tighter one breaking a hardware limit such as the longest gate) are
-//     known, α is bisected geometrically between them until they are
-//     within 10 %.
+//   - valid;
+//   - too loose: the fidelity misses the target, or a limit that a slower
+//     gate would meet fails (minimum duration, slew, amplitude) — go
+//     tighter;
+//   - too long: the longest allowed duration or the sample count is
+//     exceeded — go looser.
 //
-// It returns the shortest passing waveform, or, when none passes within
-// maxTimingRounds, the one with the best fidelity among those that fit the
-// hardware (or the first built, if none fits); its checks tell the rest.
+// From α = waveform.DefaultAdiabaticity it steps by ×1.25 towards the
+// other class (a too-loose trial is rescaled by 0.7·√((1−F_target)/(1−F)),
+// between ×0.25 and ×0.9, since the non-adiabatic error falls about as
+// α²), then bisects geometrically between the loosest valid α and the
+// tightest too-loose one until they are within 10 %. It returns the valid
+// waveform with the loosest α; when none is valid after maxTimingRounds,
+// the one with the best fidelity among those that fit the hardware (or
+// the first built); its checks tell the rest.
 func timeLoop(spec *Spec, plan *waveform.Plan, log io.Writer) (*waveform.Waveform, error) {
 	hw := hardwareOf(spec)
 	adiabatic := false
@@ -174,18 +189,15 @@ func timeLoop(spec *Spec, plan *waveform.Plan, log io.Writer) (*waveform.Wavefor
 	if plan.MinFidelity != 0 {
 		goal = plan.MinFidelity
 	}
-	// Time for half the allowed infidelity, leaving a margin for what the
-	// ideal model leaves out.
-	goal = 1 - timingMargin*(1-goal)
+	target := 1 - timingMargin*(1-goal)
 	var (
-		pass       *waveform.Waveform // shortest waveform meeting the goal
-		best       *waveform.Waveform // best fidelity within the hardware
-		first      *waveform.Waveform
-		bestF      = -1.0
-		passAlpha  = math.NaN() // loosest α that passed
-		looseFail  = math.NaN() // tightest α above passAlpha that missed the fidelity goal
-		tightBreak = math.NaN() // loosest α that broke a hardware limit
-		alpha      = waveform.DefaultAdiabaticity
+		valid, best, first *waveform.Waveform
+		bestF              = -1.0
+		validAlpha         = math.NaN() // loosest valid α
+		tooLoose           = math.NaN() // tightest too-loose α
+		tooLong            = math.NaN() // loosest too-long α
+		lastF              = math.NaN()
+		alpha              = waveform.DefaultAdiabaticity
 	)
 	for round := 0; round < maxTimingRounds; round++ {
 		plan.Adiabaticity = alpha
@@ -194,10 +206,10 @@ func timeLoop(spec *Spec, plan *waveform.Plan, log io.Writer) (*waveform.Wavefor
 		switch {
 		case err != nil && !errors.As(err, &le):
 			return nil, fmt.Errorf("spec %s: timing and sampling: %w", spec.File, err)
-		case err != nil && round == 0:
+		case err != nil && !adiabatic:
 			return nil, &InfeasibleError{Err: fmt.Errorf("spec %s: %w", spec.File, err)}
 		case err != nil:
-			tightBreak = math.Max(nanTo(tightBreak, 0), alpha)
+			tooLong = math.Max(nanTo(tooLong, 0), alpha) // only the sample count can stop Build
 		default:
 			if first == nil {
 				first = w
@@ -209,51 +221,82 @@ func timeLoop(spec *Spec, plan *waveform.Plan, log io.Writer) (*waveform.Wavefor
 			if err != nil {
 				return nil, fmt.Errorf("spec %s: verification: %w", spec.File, err)
 			}
+			long, other := hardwareFailures(v)
 			switch {
-			case !hardwareOK(v):
-				tightBreak = math.Max(nanTo(tightBreak, 0), alpha)
-			case v.Fidelity >= goal:
-				if math.IsNaN(passAlpha) || alpha > passAlpha {
-					pass, passAlpha = w, alpha
-				}
-			default:
-				if v.Fidelity > bestF {
+			case long:
+				tooLong = math.Max(nanTo(tooLong, 0), alpha)
+			case other || v.Fidelity < target:
+				tooLoose = math.Min(nanTo(tooLoose, math.Inf(1)), alpha)
+				lastF = v.Fidelity
+				if !other && v.Fidelity > bestF {
 					best, bestF = w, v.Fidelity
 				}
-				looseFail = math.Min(nanTo(looseFail, math.Inf(1)), alpha)
-				logf(log, "fidelity %.6f misses the timing target %.6g at adiabaticity goal %.3g (%s); re-timing",
-					v.Fidelity, goal, alpha, FormatQuantity(w.Duration(), Time))
+				if !other {
+					logf(log, "fidelity %.6f misses the timing target %.6g at adiabaticity goal %.3g (%s); re-timing",
+						v.Fidelity, target, alpha, FormatQuantity(w.Duration(), Time))
+				}
+			default:
+				if math.IsNaN(validAlpha) || alpha > validAlpha {
+					valid, validAlpha = w, alpha
+				}
 			}
 		}
-		// Next α.
+		// The next goal.
 		switch {
-		case !math.IsNaN(passAlpha) && !math.IsNaN(looseFail):
-			if looseFail/passAlpha < 1.1 {
-				return pass, nil
+		case !math.IsNaN(validAlpha) && !math.IsNaN(tooLoose):
+			if tooLoose/validAlpha < 1.1 {
+				return valid, nil
 			}
-			alpha = math.Sqrt(passAlpha * looseFail)
-		case !math.IsNaN(passAlpha):
-			return pass, nil // the default goal already passes
-		case !math.IsNaN(tightBreak) && !math.IsNaN(looseFail):
-			if looseFail/tightBreak < 1.02 {
+			alpha = math.Sqrt(validAlpha * tooLoose)
+		case !math.IsNaN(validAlpha):
+			if validAlpha >= maxAdiabaticity {
+				return valid, nil
+			}
+			alpha = math.Min(maxAdiabaticity, validAlpha*1.25)
+		case !math.IsNaN(tooLong) && !math.IsNaN(tooLoose):
+			if tooLoose <= tooLong*1.02 {
+				round = maxTimingRounds // no goal fits between the two limits
+			}
+			alpha = math.Sqrt(tooLong * tooLoose)
+		case !math.IsNaN(tooLong):
+			if tooLong >= maxAdiabaticity {
 				round = maxTimingRounds
 			}
-			alpha = math.Sqrt(tightBreak * looseFail)
-		case !math.IsNaN(tightBreak):
-			round = maxTimingRounds // even the first goal breaks the hardware
+			alpha = math.Min(maxAdiabaticity, tooLong*1.25)
 		default:
-			f := 0.7 * math.Sqrt((1-goal)/(1-bestF))
-			alpha *= math.Max(0.25, math.Min(0.9, f))
+			f := 0.9
+			if !math.IsNaN(lastF) && lastF < 1 {
+				f = math.Max(0.25, math.Min(0.9, 0.7*math.Sqrt((1-target)/(1-lastF))))
+			}
+			alpha = tooLoose * f
 		}
 	}
 	switch {
-	case pass != nil:
-		return pass, nil
+	case valid != nil:
+		return valid, nil
 	case best != nil:
-		logf(log, "the timing target %.6g is out of reach within the hardware limits; keeping the best waveform, F = %.6f", goal, bestF)
+		logf(log, "the timing target %.6g is out of reach within the hardware limits; keeping the best waveform, F = %.6f", target, bestF)
 		return best, nil
+	case first != nil:
+		return first, nil
 	}
-	return first, nil
+	return nil, &InfeasibleError{Err: fmt.Errorf("spec %s: no adiabaticity goal up to %g gives a gate within the sample limit", spec.File, maxAdiabaticity)}
+}
+
+// hardwareFailures sorts the failed hardware checks of v: long reports a
+// gate that is too long (duration or sample count), other any other
+// failed hardware limit.
+func hardwareFailures(v *waveform.Verification) (long, other bool) {
+	for _, c := range v.Checks {
+		switch {
+		case c.Pass || c.Name == "fidelity" || c.Name == "adiabaticity":
+		case c.Name == "duration" || c.Name == "sample count":
+			long = true
+		default:
+			other = true
+		}
+	}
+	return long, other
 }
 
 func nanTo(x, v float64) float64 {
@@ -317,17 +360,6 @@ func FormatSI(v float64, unit string) string {
 	return fmt.Sprintf("%.4g %s", v, unit)
 }
 
-// hardwareOK reports whether every hardware check of v passes (the
-// fidelity and adiabaticity goals are not hardware checks).
-func hardwareOK(v *waveform.Verification) bool {
-	for _, c := range v.Checks {
-		if !c.Pass && c.Name != "fidelity" && c.Name != "adiabaticity" {
-			return false
-		}
-	}
-	return true
-}
-
 // writeAll writes every output to a temporary file in its folder first
 // and renames them into place only when all were written and the run was
 // not interrupted, so an error or Ctrl-C leaves none of them (and a kill
@@ -373,16 +405,17 @@ type solution struct {
 
 // solve runs the loop search for spec's method and builds the plan.
 func solve(ctx context.Context, spec *Spec, seed uint64) (*solution, error) {
-	sc, target := spec.Scheme, spec.Target.U
+	// The search works at unit scale, where the peak Rabi frequency is 1:
+	// static detunings and detuning errors are expressed in units of the
+	// largest Rabi limit, the amplitude the timing stage aims at. The plan
+	// keeps the physical scheme.
+	ref := 0.0
+	for _, r := range spec.Hardware.MaxRabi {
+		ref = math.Max(ref, r)
+	}
+	sc, target := unitScheme(spec.Scheme, ref), spec.Target.U
 	var ens optimize.Ensemble
 	if spec.Search.Robust.Enabled() {
-		// The search works at unit scale, where the peak Rabi frequency
-		// is 1: express the detuning error in units of the largest Rabi
-		// limit, the amplitude the timing stage aims at.
-		ref := 0.0
-		for _, r := range spec.Hardware.MaxRabi {
-			ref = math.Max(ref, r)
-		}
 		ens = robustEnsemble(spec, spec.Search.Robust.Amplitude, spec.Search.Robust.Detuning/ref)
 	}
 	switch spec.Method {
@@ -406,7 +439,7 @@ func solve(ctx context.Context, spec *Spec, seed uint64) (*solution, error) {
 		if err != nil {
 			return nil, &InfeasibleError{Err: fmt.Errorf("spec %s: scheme: %w", spec.File, err)}
 		}
-		plan := &waveform.Plan{Scheme: sc, Target: target}
+		plan := &waveform.Plan{Scheme: spec.Scheme, Target: target}
 		for _, g := range res.Segments {
 			g := g
 			plan.Segments = append(plan.Segments, waveform.Segment{
@@ -461,7 +494,7 @@ func solve(ctx context.Context, spec *Spec, seed uint64) (*solution, error) {
 			return nil, searchError(spec, err)
 		}
 		plan := &waveform.Plan{
-			Scheme:   sc,
+			Scheme:   spec.Scheme,
 			Target:   target,
 			Segments: []waveform.Segment{{Kind: waveform.Adiabatic, Shape: res.Loop}},
 		}
@@ -476,7 +509,6 @@ func solve(ctx context.Context, spec *Spec, seed uint64) (*solution, error) {
 		if res.Check != nil {
 			sum.HolonomyError = res.Check.ErrorEstimate
 			sum.LoopPoints = res.Check.Points
-			sum.MinGap = res.Check.Gap.Min / (2 * math.Pi)
 			for _, f := range res.Check.Findings {
 				sum.Findings = append(sum.Findings, f.Message)
 			}
@@ -498,9 +530,11 @@ const (
 // A loop of unit-scale drive vectors u(s) runs at the peak amplitude
 // A = min_c MaxRabi_c / max_s |u_c(s)|: a channel with a low Rabi limit
 // that the loop drives hard slows the whole gate down. Loops with
-// A ≥ minAmplitudeShare · max_c MaxRabi_c cost nothing; below that the
-// penalty grows as the square of the shortfall (relative to the strongest
-// channel). With equal limits no loop is penalised, since |u_c| ≤ 1.
+// A ≥ minAmplitudeShare · ref cost nothing, where ref is the largest Rabi
+// limit capped at the amplitude the base point itself allows (every loop
+// passes through it); below that the penalty grows as the square of the
+// shortfall relative to ref. With equal limits no loop is penalised,
+// since |u_c| ≤ 1.
 // It returns nil for spin schemes, whose field magnitude is fixed. The
 // penalty keeps its own copy of the shape, so the search must call it
 // from one goroutine at a time (it does).
@@ -521,6 +555,14 @@ func amplitudePenalty(sc *holonomy.Scheme, shape optimize.Shape, maxRabi []float
 	}
 	own := shape.Clone()
 	p := sc.NewPoint()
+	// Every loop passes through the base point: the amplitude it allows is
+	// the most any loop can have.
+	own.Point(0, p)
+	for c, d := range p.Drive {
+		if a := cmplx.Abs(d); a > 0 {
+			ref = math.Min(ref, maxRabi[c]/a)
+		}
+	}
 	peak := make([]float64, len(sc.Channels))
 	return func(x []float64) float64 {
 		own.SetParams(x)
@@ -545,6 +587,54 @@ func amplitudePenalty(sc *holonomy.Scheme, shape optimize.Shape, maxRabi []float
 		}
 		return short * short
 	}
+}
+
+// simulateEnsemble evaluates the robust design's error ensemble on the
+// built waveform: the ideal model of the quantised waveform with each
+// member's common amplitude error and detuning error.
+func simulateEnsemble(spec *Spec, w *waveform.Waveform, r *RobustSummary) error {
+	rb := spec.Search.Robust
+	sim := waveform.NewSimulator(w)
+	out := new(waveform.Outcome)
+	r.Built, r.BuiltMean, r.BuiltWorst = nil, 0, 0
+	for _, e := range []float64{-rb.Amplitude, 0, rb.Amplitude} {
+		for _, d := range []float64{-rb.Detuning, 0, rb.Detuning} {
+			if (rb.Amplitude == 0 && e != 0) || (rb.Detuning == 0 && d != 0) {
+				continue
+			}
+			m := waveform.ErrorModel{AmplitudeError: e}
+			if rb.DetuningKind == TwoPhoton {
+				m.TwoPhotonDetuning = d
+			} else {
+				m.OnePhotonDetuning = d
+			}
+			if err := sim.Run(m, out); err != nil {
+				return fmt.Errorf("spec %s: robust design: %w", spec.File, err)
+			}
+			inf := 1 - out.Fidelity
+			r.Built = append(r.Built, EnsembleMember{Amplitude: e, Detuning: d, Kind: rb.DetuningKind.String(), Infidelity: inf})
+			r.BuiltMean += inf
+			r.BuiltWorst = math.Max(r.BuiltWorst, inf)
+		}
+	}
+	r.BuiltMean /= float64(len(r.Built))
+	return nil
+}
+
+// unitScheme returns a copy of sc for the loop search at unit scale: each
+// static level detuning (rad/s) divided by 2π·refHz, the peak Rabi
+// frequency the timing stage aims at, and no decay (the search is about
+// the coherent holonomy).
+func unitScheme(sc *holonomy.Scheme, refHz float64) *holonomy.Scheme {
+	u := *sc
+	u.Levels = append([]holonomy.Level(nil), sc.Levels...)
+	for k := range u.Levels {
+		if refHz > 0 {
+			u.Levels[k].Detuning /= 2 * math.Pi * refHz
+		}
+		u.Levels[k].Decay = 0
+	}
+	return &u
 }
 
 // searchError classifies an error from the search stage.

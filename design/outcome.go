@@ -60,15 +60,17 @@ type SearchSummary struct {
 	HolonomyError float64        `json:"holonomy_error_estimate,omitempty"`
 	LoopPoints    int            `json:"loop_points,omitempty"`
 	LoopLength    float64        `json:"loop_length_rad,omitempty"`
-	MinGap        float64        `json:"min_gap_hz,omitempty"`
+	MinGap        float64        `json:"min_gap_hz,omitempty"` // smallest gap/2π along the timed loop (adiabatic)
 	Evaluations   int            `json:"evaluations"`
 	Restarts      int            `json:"restarts"`
 	Findings      []string       `json:"findings,omitempty"`
 	Robust        *RobustSummary `json:"robust,omitempty"`
 }
 
-// RobustSummary describes the robust-design stage: mean and worst
-// infidelity over the error ensemble for the nominal and the robust loop.
+// RobustSummary describes the robust-design stage. The nominal and robust
+// means and worst cases are those of the search's own model (unit-scale
+// holonomies, or square pulses for the Λ scheme); Built holds the members
+// simulated on the waveform actually built, the figures that count.
 type RobustSummary struct {
 	Members      int     `json:"members"`
 	NominalMean  float64 `json:"nominal_mean_infidelity"`
@@ -78,6 +80,22 @@ type RobustSummary struct {
 	Improvement  float64 `json:"improvement"`
 	Insensitive  bool    `json:"insensitive"`
 	Kept         bool    `json:"kept_nominal"`
+	// Built lists the ensemble members with the infidelity of the built
+	// waveform (ideal model plus the member's errors).
+	Built []EnsembleMember `json:"built_waveform"`
+	// BuiltMean and BuiltWorst summarise Built.
+	BuiltMean  float64 `json:"built_mean_infidelity"`
+	BuiltWorst float64 `json:"built_worst_infidelity"`
+}
+
+// EnsembleMember is one error case of the robust design: a common
+// amplitude error, a detuning error (Hz) of the given kind, and the
+// infidelity of the built waveform under it.
+type EnsembleMember struct {
+	Amplitude  float64 `json:"amplitude_error"`
+	Detuning   float64 `json:"detuning_hz"`
+	Kind       string  `json:"detuning_kind"`
+	Infidelity float64 `json:"infidelity"`
 }
 
 // Figures are the simulated figures of merit of one error model.

@@ -30,8 +30,9 @@ func printOutcome(w io.Writer, o *design.Outcome) {
 			fmt.Fprintf(w, "            note: %s\n", f)
 		}
 		if r := s.Robust; r != nil {
-			fmt.Fprintf(w, "robust      mean infidelity over %d error cases: %.2e nominal → %.2e robust (worst %.2e → %.2e)\n",
+			fmt.Fprintf(w, "robust      search model, %d error cases: mean infidelity %.2e nominal → %.2e robust (worst %.2e → %.2e)\n",
 				r.Members, r.NominalMean, r.RobustMean, r.NominalWorst, r.RobustWorst)
+			fmt.Fprintf(w, "            built waveform over the same cases: mean %.2e, worst %.2e\n", r.BuiltMean, r.BuiltWorst)
 			if r.Insensitive {
 				fmt.Fprintln(w, "            the holonomy does not depend on these errors; the nominal loop is kept")
 			}
