@@ -105,7 +105,11 @@ func Design(ctx context.Context, spec *Spec, opt Options) (*Outcome, error) {
 			return nil, err
 		}
 	}
-	a, err := analyse(ctx, w, errorModelOf(spec), sweepsOf(spec, w.Duration()), !opt.NoSweeps, opt.Progress, opt.Log)
+	model, sweeps := errorModelOf(spec), sweepsOf(spec, w.Duration())
+	if err := checkModels(w, model, sweeps); err != nil {
+		return nil, &InputError{Err: fmt.Errorf("spec %s: errors and sweeps: %w", spec.File, err)}
+	}
+	a, err := analyse(ctx, w, model, sweeps, !opt.NoSweeps, opt.Progress, opt.Log)
 	if err != nil {
 		return nil, err
 	}
@@ -748,6 +752,39 @@ func errorModelOf(spec *Spec) waveform.ErrorModel {
 		m.Decay = math.Max(m.Decay, spec.Scheme.Levels[k].Decay)
 	}
 	return m
+}
+
+// checkModels validates the error model and the model at both ends of
+// every sweep range before any simulation runs, so that bad input is
+// reported as such.
+func checkModels(w *waveform.Waveform, m waveform.ErrorModel, sp sweepPlan) error {
+	if err := w.CheckModel(m); err != nil {
+		return err
+	}
+	ranges := []waveform.Range{sp.amplitude, sp.detuning, sp.mapX, sp.mapY}
+	if sp.oneExtra != nil {
+		ranges = append(ranges, *sp.oneExtra)
+	}
+	for _, r := range ranges {
+		if err := r.Validate(); err != nil {
+			return err
+		}
+		for _, v := range []float64{r.Min, r.Max} {
+			e := m
+			switch r.Axis {
+			case waveform.AmplitudeAxis:
+				e.AmplitudeError = v
+			case waveform.OnePhotonAxis:
+				e.OnePhotonDetuning = v
+			case waveform.TwoPhotonAxis:
+				e.TwoPhotonDetuning = v
+			}
+			if err := w.CheckModel(e); err != nil {
+				return fmt.Errorf("sweep of the %s to %g: %w", r.Axis, v, err)
+			}
+		}
+	}
+	return nil
 }
 
 // sweepPlan lists the robustness analysis to run.

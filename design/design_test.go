@@ -412,3 +412,27 @@ func TestRobustDesign(t *testing.T) {
 	}
 	t.Logf("search model: mean %.4g → %.4g; built waveform: mean %.4g, worst %.4g", r.NominalMean, r.RobustMean, r.BuiltMean, r.BuiltWorst)
 }
+
+// TestDesignAbsurdRates gives a dephasing rate that acts 1e10 times per
+// sample: it must be refused as bad input, quickly, not simulated.
+func TestDesignAbsurdRates(t *testing.T) {
+	src, err := os.ReadFile(filepath.Join("..", "testdata", "demo-lambda-hadamard.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := string(src)
+	i := strings.Index(s, "dephasing:")
+	if i < 0 {
+		t.Fatal("demo spec has no dephasing")
+	}
+	end := strings.Index(s[i:], "\n")
+	s = s[:i] + `dephasing: "1e9 GHz"` + s[i+end:]
+	spec, err := ParseSpec([]byte(s), "absurd.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, err = Design(context.Background(), spec, Options{OutDir: t.TempDir(), NoSweeps: true, NoReport: true})
+	if ExitCode(err) != ExitBadInput || !strings.Contains(err.Error(), "absurd.yaml") || !strings.Contains(err.Error(), "per sample") {
+		t.Fatalf("got %v (exit %d); want bad input naming the file and the rate", err, ExitCode(err))
+	}
+}

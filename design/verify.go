@@ -134,6 +134,9 @@ func VerifyFile(ctx context.Context, path string, opt VerifyOptions) (*Outcome, 
 	if err := opt.Errors.apply(&model); err != nil {
 		return nil, err
 	}
+	if err := checkModels(w, model, sp); err != nil {
+		return nil, &InputError{Err: fmt.Errorf("waveform %s: error model: %w", path, err)}
+	}
 	a, err := analyse(ctx, w, model, sp, !opt.NoSweeps, opt.Progress, nil)
 	if err != nil {
 		return nil, err

@@ -197,6 +197,12 @@ type Simulator struct {
 	isExc   []bool
 }
 
+// CheckModel reports whether m is a valid error model for w (the checks
+// Run makes before any work): amplitude errors above −1, finite detunings,
+// rates and detunings the sampled model resolves, a filter whose reach and
+// step count stay within bounds, and so on.
+func (w *Waveform) CheckModel(m ErrorModel) error { return NewSimulator(w).validate(&m) }
+
 // NewSimulator returns a workspace for simulating w.
 func NewSimulator(w *Waveform) *Simulator {
 	n := w.Scheme.Dim()
@@ -258,6 +264,19 @@ func (s *Simulator) validate(m *ErrorModel) error {
 	if !finite(m.OnePhotonDetuning) || !finite(m.TwoPhotonDetuning) {
 		return errors.New("error model: detunings must be finite")
 	}
+	// Rates and detunings so large that the state decays or winds many
+	// times within one sample are outside what a sampled model resolves
+	// (and would make the exact steps arbitrarily long): refuse them.
+	dt := s.w.Dt()
+	if r := (m.Decay + 2*m.Dephasing) * dt; r > maxRatePerSample {
+		return fmt.Errorf("error model: decay %.3g /s and dephasing %.3g /s act %.3g times per sample (%.3g s); the limit is %g: rates this large are outside what a sampled waveform model resolves",
+			m.Decay, m.Dephasing, r, dt, float64(maxRatePerSample))
+	}
+	for _, d := range []float64{m.OnePhotonDetuning, m.TwoPhotonDetuning} {
+		if r := 2 * math.Pi * math.Abs(d) * dt; r > maxRatePerSample {
+			return fmt.Errorf("error model: a detuning of %.3g Hz winds %.3g rad per sample (%.3g s); the limit is %g rad", d, r, dt, float64(maxRatePerSample))
+		}
+	}
 	if !finite(m.Decay) || m.Decay < 0 || !finite(m.Dephasing) || m.Dephasing < 0 {
 		return errors.New("error model: decay and dephasing rates must be finite and non-negative")
 	}
@@ -304,6 +323,10 @@ func reachText(k FilterKind) string {
 	}
 	return "6σ, σ = rise time/2.5631"
 }
+
+// maxRatePerSample bounds Γ·Δt, 2γ_φ·Δt and 2πδ·Δt per sample in an
+// error model.
+const maxRatePerSample = 100
 
 // maxSteps bounds the propagation steps of one simulation (samples plus
 // filter margins, times sub-steps).
