@@ -47,7 +47,7 @@ func analyse(ctx context.Context, w *waveform.Waveform, model waveform.ErrorMode
 	}
 	logf(log, "robustness: sweeps, %d×%d map and the dynamical-gate comparison", sp.mapX.Points, sp.mapY.Points)
 	if a.compare, err = waveform.Compare(ctx, w, []waveform.Range{sp.amplitude, sp.detuning}, opt); err != nil {
-		return nil, fmt.Errorf("geometric advantage: %w", err)
+		return nil, err
 	}
 	if sp.oneExtra != nil {
 		if a.extra, err = waveform.SweepAxis(ctx, w, *sp.oneExtra, opt); err != nil {
@@ -55,7 +55,7 @@ func analyse(ctx context.Context, w *waveform.Waveform, model waveform.ErrorMode
 		}
 	}
 	if a.errMap, err = waveform.SweepMap(ctx, w, sp.mapX, sp.mapY, opt); err != nil {
-		return nil, fmt.Errorf("robustness map: %w", err)
+		return nil, err
 	}
 	return a, nil
 }

@@ -210,8 +210,8 @@ func timeLoop(spec *Spec, plan *waveform.Plan, log io.Writer) (*waveform.Wavefor
 		switch {
 		case err != nil && !errors.As(err, &le):
 			return nil, fmt.Errorf("spec %s: timing and sampling: %w", spec.File, err)
-		case err != nil && !adiabatic:
-			return nil, &InfeasibleError{Err: fmt.Errorf("spec %s: %w", spec.File, err)}
+		case err != nil && (!adiabatic || le.Check.Name != "sample count"):
+			return nil, &InfeasibleError{Err: fmt.Errorf("spec %s: hardware: %s", spec.File, describeCheck(le.Check))}
 		case err != nil:
 			tooLong = math.Max(nanTo(tooLong, 0), alpha) // only the sample count can stop Build
 		default:
@@ -385,15 +385,15 @@ func writeAll(ctx context.Context, paths []string, overwrite bool, writers []fun
 		}
 		files = append(files, f)
 		if err := write(f); err != nil {
-			return fmt.Errorf("output %s: %w", paths[i], err)
+			return &OutputError{Err: fmt.Errorf("output %s: %w", paths[i], err)}
 		}
 	}
 	if err := ctx.Err(); err != nil {
 		return err
 	}
-	for i, f := range files {
+	for _, f := range files {
 		if err := f.Commit(); err != nil {
-			return &OutputError{Err: fmt.Errorf("output %s: %w", paths[i], err)}
+			return &OutputError{Err: err}
 		}
 	}
 	return nil
@@ -431,7 +431,7 @@ func solve(ctx context.Context, spec *Spec, seed uint64) (*solution, error) {
 			Restarts:         spec.Search.Restarts,
 			Seed:             seed,
 			TargetInfidelity: spec.Search.TargetInfidelity,
-			MaxEvaluations:   spec.Search.Evaluations,
+			MaxEvaluations:   totalEvaluations(spec),
 			FromClosedForm:   true,
 			Ensemble:         ens,
 		}
@@ -489,7 +489,7 @@ func solve(ctx context.Context, spec *Spec, seed uint64) (*solution, error) {
 			Restarts:         spec.Search.Restarts,
 			Seed:             seed,
 			TargetInfidelity: spec.Search.TargetInfidelity,
-			MaxEvaluations:   spec.Search.Evaluations,
+			MaxEvaluations:   totalEvaluations(spec),
 			Points:           min(shape.Points(), spec.Search.LoopPoints),
 			Ensemble:         ens,
 		}
@@ -641,14 +641,26 @@ func unitScheme(sc *holonomy.Scheme, refHz float64) *holonomy.Scheme {
 	return &u
 }
 
+// totalEvaluations is the search's whole evaluation budget: the spec's
+// search.evaluations per start times search.restarts, capped at
+// MaxTotalEvaluations.
+func totalEvaluations(spec *Spec) int {
+	n := spec.Search.Evaluations * max(1, spec.Search.Restarts)
+	return min(n, MaxTotalEvaluations)
+}
+
 // searchError classifies an error from the search stage.
 func searchError(spec *Spec, err error) error {
 	var ue *optimize.UnreachableError
 	switch {
 	case errors.Is(err, context.Canceled), errors.Is(err, context.DeadlineExceeded):
 		return err
-	case errors.As(err, &ue), errors.Is(err, optimize.ErrNotConverged):
+	case errors.As(err, &ue):
 		return &InfeasibleError{Err: fmt.Errorf("spec %s: target %s: %w", spec.File, spec.Target.Label, err)}
+	case errors.Is(err, optimize.ErrNotConverged):
+		return &InfeasibleError{Err: fmt.Errorf("spec %s: target %s: the search did not reach search.target_infidelity %g "+
+			"(raise search.restarts or search.evaluations, try another search.seed or loop family, or relax the target): %w",
+			spec.File, spec.Target.Label, spec.Search.TargetInfidelity, err)}
 	}
 	return &InfeasibleError{Err: fmt.Errorf("spec %s: loop search: %w", spec.File, err)}
 }

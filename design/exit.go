@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"strings"
 )
 
 // Exit codes of the loopgate command, documented in the README.
@@ -52,7 +53,7 @@ type ChecksFailedError struct {
 
 // Error returns the message.
 func (e *ChecksFailedError) Error() string {
-	return fmt.Sprintf("%d check(s) failed: %v", len(e.Failed), e.Failed)
+	return fmt.Sprintf("%d check(s) failed: %s", len(e.Failed), strings.Join(e.Failed, "; "))
 }
 
 // ExitCode maps an error returned by this package to the command's exit code.

@@ -48,8 +48,11 @@ type Outcome struct {
 	// Reproduced is set by VerifyFile: whether the recomputed ideal
 	// figures equal those stored in the file bit for bit.
 	Reproduced *bool `json:"reproduced,omitempty"`
-	// Pass reports whether every check passed.
+	// Pass reports whether every check passed (ideal model; the figures
+	// with errors are reported, not checked).
 	Pass bool `json:"pass"`
+	// Caution is the safety caution that goes with every waveform.
+	Caution string `json:"caution"`
 }
 
 // SearchSummary describes the loop search.
@@ -168,6 +171,7 @@ func newOutcome(cmd, source, title, target string, w *waveform.Waveform, a *anal
 		Ideal:      figures(a.ideal),
 		WithErrors: figures(a.withErrors),
 		Pass:       a.ideal.Pass(),
+		Caution:    Caution,
 	}
 	for _, c := range a.ideal.Checks {
 		bound := "max"
@@ -181,7 +185,12 @@ func newOutcome(cmd, source, title, target string, w *waveform.Waveform, a *anal
 	}
 	if a.compare != nil {
 		adv := &Advantage{Threshold: a.compare.Threshold, Dynamical: a.compare.Dynamical.String()}
+		// A diagonal target needs no pulse on a directly driven qubit (a
+		// virtual z rotation): there is nothing to compare, so no rows.
 		for _, r := range a.compare.Rows {
+			if a.compare.Dynamical.Waveform.Len() == 0 {
+				break
+			}
 			adv.Rows = append(adv.Rows, AdvantageRow{
 				Axis: r.Axis.String(), Unit: r.Axis.Unit(),
 				Geometric: r.Geometric.Width, GeometricOpen: r.Geometric.Open(),

@@ -80,6 +80,13 @@ func reportData(o *Outcome, w *waveform.Waveform, plan *waveform.Plan, a *analys
 	if cmp := a.compare; cmp != nil {
 		d.DynamicalGate = cmp.Dynamical.String()
 		for i, r := range cmp.Rows {
+			if cmp.Dynamical.Waveform.Len() == 0 {
+				// No pulse to compare with (diagonal target): show the
+				// geometric gate's curves only.
+				g := cmp.Geometric[i]
+				d.Sweeps = append(d.Sweeps, report.Sweep{Axis: r.Axis.String(), Unit: r.Axis.Unit(), X: g.X, Geometric: g.Fidelity})
+				continue
+			}
 			d.Advantage = append(d.Advantage, report.AdvantageRow{
 				Axis: r.Axis.String(), Unit: r.Axis.Unit(),
 				Geometric: r.Geometric.Width, Dynamical: r.Dynamical.Width, Ratio: r.Ratio,

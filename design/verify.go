@@ -6,6 +6,7 @@ import (
 	"io"
 	"math"
 	"os"
+	"path/filepath"
 
 	"github.com/loopgate/loopgate/waveform"
 )
@@ -113,7 +114,13 @@ func VerifyFile(ctx context.Context, path string, opt VerifyOptions) (*Outcome, 
 	if err != nil {
 		return nil, err
 	}
+	if f.Spec != "" && waveform.SpecHash([]byte(f.Spec)) != f.SpecSHA256 {
+		return nil, &InputError{Err: fmt.Errorf("waveform %s: /spec: the spec text does not match /spec_sha256 (the file was edited)", path)}
+	}
 	if opt.Report != "" {
+		if err := PrepareOutputDir(filepath.Dir(opt.Report)); err != nil {
+			return nil, &OutputError{Err: err}
+		}
 		if err := CheckOutputs([]string{opt.Report}, opt.Overwrite); err != nil {
 			return nil, &OutputError{Err: err}
 		}

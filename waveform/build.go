@@ -115,9 +115,28 @@ const (
 	cornerAngle      = 0.1 // rad; a sharper turn between grid secants is a corner
 	derivStep        = 1e-6
 	// slewUse is the share of the slew limit the timing plans for; the
-	// rest absorbs discretisation and DAC rounding.
+	// rest absorbs discretisation and DAC rounding (the plan also leaves at
+	// least two DAC steps per sample free, see plannedSlew).
 	slewUse = 0.95
 )
+
+// plannedSlew returns the slew rate the timing plans for: slewUse of the
+// limit, and at least two DAC steps per sample below it, since rounding
+// each sample to a code can add up to one step between neighbours. A limit
+// at or below two steps per sample cannot be met by any quantised
+// waveform and is a *LimitError.
+func plannedSlew(hw *Hardware) (float64, error) {
+	var lsb float64
+	for c := range hw.FullScale {
+		lsb = math.Max(lsb, hw.lsb(c))
+	}
+	floor := 2 * lsb * hw.SampleRate
+	slew := math.Min(slewUse*hw.MaxSlew, hw.MaxSlew-floor)
+	if slew <= 0 {
+		return 0, &LimitError{Check: newCheck("slew rate (two DAC steps per sample)", floor, hw.MaxSlew, "Hz/s", boundMax)}
+	}
+	return slew, nil
+}
 
 // timing is the continuous timing of one segment before sampling.
 type timing struct {
@@ -172,6 +191,7 @@ type builder struct {
 	bare  *holonomy.Scheme // same without static detunings (for ∂H)
 	hw    Hardware
 	alpha float64
+	slew  float64 // slew rate the timing plans for, Hz/s (see plannedSlew)
 	sp    *spectrum
 	h, dh *holonomy.Mat
 	pt    holonomy.Point
@@ -195,10 +215,14 @@ func Build(p *Plan, hw Hardware) (*Waveform, error) {
 		return nil, err
 	}
 	hw = hw.clone()
+	slew, err := plannedSlew(&hw)
+	if err != nil {
+		return nil, err
+	}
 	sc, hz := canonScheme(p.Scheme)
 	bare := schemeFromHz(sc, make([]float64, len(hz)))
 	b := &builder{
-		sc: sc, bare: bare, hw: hw, alpha: scheduleMargin * p.adiabaticity(),
+		sc: sc, bare: bare, hw: hw, alpha: scheduleMargin * p.adiabaticity(), slew: slew,
 		sp: newSpectrum(sc),
 		h:  holonomy.NewMat(sc.Dim(), sc.Dim()), dh: holonomy.NewMat(sc.Dim(), sc.Dim()),
 		pt: sc.NewPoint(), tmp: sc.NewPoint(),
@@ -344,7 +368,7 @@ func (b *builder) timeCyclic(seg Segment) (*timing, error) {
 		return nil, err
 	}
 	t := 2 * seg.Area / amax
-	t = math.Max(t, math.Sqrt(seg.Area*umax/(slewUse*b.hw.MaxSlew)))
+	t = math.Max(t, math.Sqrt(seg.Area*umax/(b.slew)))
 	return &timing{seg: seg, amp: amax, tMain: t}, nil
 }
 
@@ -511,7 +535,7 @@ func (b *builder) timeAdiabatic(seg Segment) (*timing, error) {
 	for c := 0; c < nch; c++ {
 		u0 = math.Max(u0, math.Hypot(la.pts[2*c], la.pts[2*c+1]))
 	}
-	t.tRamp = math.Max(math.Pi/2*amp*kr/b.alpha, amp*u0/(4*slewUse*b.hw.MaxSlew))
+	t.tRamp = math.Max(math.Pi/2*amp*kr/b.alpha, amp*u0/(4*b.slew))
 	t.tRamp = math.Max(t.tRamp, minRampSamples/b.hw.SampleRate)
 	return t, nil
 }
@@ -608,7 +632,7 @@ func (la *loopAnalysis) cost(s float64, side int) (float64, float64, error) {
 	for c := 0; c < la.nch; c++ {
 		du = math.Max(du, math.Hypot(la.dv[2*c], la.dv[2*c+1]))
 	}
-	return math.Max(kappa/b.alpha, la.amp*du/(2*math.Pi*slewUse*b.hw.MaxSlew)), gap, nil
+	return math.Max(kappa/b.alpha, la.amp*du/(2*math.Pi*b.slew)), gap, nil
 }
 
 // corners returns the loop parameters in (0, 1) where the direction of

@@ -12,6 +12,7 @@ import (
 	"fmt"
 	"os"
 	"os/signal"
+	"strings"
 	"syscall"
 
 	"github.com/loopgate/loopgate/design"
@@ -25,6 +26,10 @@ func main() {
 		if !errors.Is(err, errPrinted) {
 			fmt.Fprintln(os.Stderr, "loopgate:", err)
 		}
-		os.Exit(design.ExitCode(err))
+		code := design.ExitCode(err)
+		if code == design.ExitInternal && strings.HasPrefix(err.Error(), "unknown command") {
+			code = design.ExitBadInput // cobra's own usage error
+		}
+		os.Exit(code)
 	}
 }

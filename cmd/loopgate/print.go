@@ -41,6 +41,10 @@ func printOutcome(w io.Writer, o *design.Outcome) {
 	fmt.Fprintf(w, "waveform    %d samples, %s at %s\n", o.Samples, si(o.Duration, "s"), si(o.SampleRate, "S/s"))
 	printFigures(w, "ideal", o.Ideal)
 	printFigures(w, "with errors", o.WithErrors)
+	if o.WithErrors.Fidelity < o.Ideal.Fidelity && len(o.Checks) > 0 && o.Checks[0].Name == "fidelity" && o.WithErrors.Fidelity < o.Checks[0].Limit {
+		fmt.Fprintf(w, "            note: with the error model on, the fidelity is below the goal %g; the checks and the exit code\n"+
+			"            refer to the ideal model — see the error budget for what to improve\n", o.Checks[0].Limit)
+	}
 	if o.Reproduced != nil {
 		verdict := "yes, bit for bit"
 		if !*o.Reproduced {
@@ -48,7 +52,10 @@ func printOutcome(w io.Writer, o *design.Outcome) {
 		}
 		fmt.Fprintf(w, "reproduced  %s\n", verdict)
 	}
-	if a := o.Advantage; a != nil {
+	if a := o.Advantage; a != nil && len(a.Rows) == 0 {
+		fmt.Fprintf(w, "\nno geometric-advantage comparison: the dynamical gate is %s\n", a.Dynamical)
+	}
+	if a := o.Advantage; a != nil && len(a.Rows) > 0 {
 		fmt.Fprintf(w, "\nwidth of the region with fidelity ≥ %g along each error axis, geometric vs dynamical gate:\n", a.Threshold)
 		for _, r := range a.Rows {
 			ratio := "—"

@@ -54,6 +54,16 @@ times in seconds.
 	return root
 }
 
+// inputArgs makes a positional-argument check's error a bad-input error.
+func inputArgs(check cobra.PositionalArgs) cobra.PositionalArgs {
+	return func(cmd *cobra.Command, args []string) error {
+		if err := check(cmd, args); err != nil {
+			return &design.InputError{Err: fmt.Errorf("%w (see '%s --help')", err, cmd.CommandPath())}
+		}
+		return nil
+	}
+}
+
 // stderrProgress returns os.Stderr when it is a terminal and quiet is off.
 func stderrProgress(quiet bool) io.Writer {
 	if quiet || !term.IsTerminal(int(os.Stderr.Fd())) {
@@ -125,7 +135,7 @@ Existing files are not replaced unless --overwrite is given.`,
 		Example: `  loopgate design -o out/
   loopgate design testdata/demo-lambda-hadamard.yaml -o out/lambda --overwrite
   loopgate design my-spec.yaml -o out/ --seed 11 --json`,
-		Args: cobra.MaximumNArgs(1),
+		Args: inputArgs(cobra.MaximumNArgs(1)),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			var spec *design.Spec
 			var err error
@@ -182,7 +192,7 @@ in the file is used unless flags override its terms.`,
   loopgate verify out/waveform.json --amplitude-error 2% --report out/verify.html
   loopgate verify out/waveform.json --rise-time "5 ns" --filter first-order --phase-step "pi/256"
   loopgate verify out/waveform.json --json`,
-		Args: cobra.ExactArgs(1),
+		Args: inputArgs(cobra.ExactArgs(1)),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			opt := design.VerifyOptions{
 				Errors:    errs,
@@ -226,7 +236,7 @@ fidelity to the target gate (the file's, or --target), the smallest gap along
 the loop, and explains in words what the loop can and cannot do.`,
 		Example: `  loopgate check out/loop.json
   loopgate check out/loop.json --target T --json`,
-		Args: cobra.ExactArgs(1),
+		Args: inputArgs(cobra.ExactArgs(1)),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			res, err := design.CheckLoopFile(cmd.Context(), args[0], design.CheckOptions{Target: target})
 			return emit(cmd, asJSON, res, res != nil, func(w io.Writer) { printLoopCheck(w, res) }, err)
@@ -243,7 +253,7 @@ func newSchemaCmd() *cobra.Command {
 		Use:       "schema {spec|waveform|loop}",
 		Short:     "Print a JSON Schema of a loopgate file format",
 		Example:   "  loopgate schema waveform > waveform.schema.json",
-		Args:      cobra.ExactArgs(1),
+		Args:      inputArgs(cobra.ExactArgs(1)),
 		ValidArgs: design.SchemaNames(),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			b, err := design.Schema(args[0])
@@ -269,7 +279,7 @@ func newStarterCmd() *cobra.Command {
 		Short: "Write a commented starter spec for a level-scheme preset",
 		Example: `  loopgate starter tripod > my-tripod.yaml
   loopgate starter lambda -o my-lambda.yaml`,
-		Args:      cobra.ExactArgs(1),
+		Args:      inputArgs(cobra.ExactArgs(1)),
 		ValidArgs: design.StarterPresets(),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			b, err := design.StarterSpec(args[0])
@@ -284,7 +294,7 @@ func newStarterCmd() *cobra.Command {
 				return err
 			}
 			if err := design.WriteFileAtomic(out, b, overwrite); err != nil {
-				return err
+				return &design.OutputError{Err: err}
 			}
 			if asJSON {
 				return printJSON(cmd.OutOrStdout(), map[string]string{"preset": args[0], "file": out})
@@ -305,7 +315,7 @@ func newGatesCmd() *cobra.Command {
 		Use:     "gates",
 		Short:   "List the named target gates",
 		Example: "  loopgate gates\n  loopgate gates --json",
-		Args:    cobra.NoArgs,
+		Args:    inputArgs(cobra.NoArgs),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			type gateJSON struct {
 				Name        string           `json:"name"`

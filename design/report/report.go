@@ -118,6 +118,10 @@ func writeFigure(b *bytes.Buffer, id string, f figure) {
 
 func advantageSection(b *bytes.Buffer, d *Data) error {
 	if len(d.Advantage) == 0 {
+		if d.DynamicalGate != "" {
+			missing(b, "No geometric-advantage comparison: the plain dynamical gate needs no pulse here ("+d.DynamicalGate+").")
+			return nil
+		}
 		missing(b, "No geometric-advantage comparison in this report (no robustness sweeps were run).")
 		return nil
 	}
