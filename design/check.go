@@ -8,6 +8,7 @@ import (
 	"math/cmplx"
 
 	"github.com/loopgate/loopgate/holonomy"
+	"github.com/loopgate/loopgate/optimize"
 	"github.com/loopgate/loopgate/waveform"
 )
 
@@ -80,7 +81,7 @@ func CheckLoopFile(ctx context.Context, path string, opt CheckOptions) (*LoopChe
 	if err != nil {
 		return nil, &InputError{Err: err}
 	}
-	target, label := lf.Target, "target stored in the file"
+	target, label := lf.Target, targetLabel(lf.Target)
 	if opt.Target != "" {
 		g, ok := LookupGate(opt.Target)
 		if !ok {
@@ -244,4 +245,15 @@ func adiabaticityProduct(sc *holonomy.Scheme, loop holonomy.Loop, n int) (float6
 		}
 	}
 	return kappa, nil
+}
+
+// targetLabel names a target stored in a file: the named gate it equals up
+// to a global phase, or its matrix.
+func targetLabel(u *holonomy.Mat) string {
+	for _, g := range Gates() {
+		if u.R == 2 && optimize.Infidelity(u, g.Matrix()) < 1e-12 {
+			return g.Symbol + " (" + g.Title + "), stored in the file"
+		}
+	}
+	return "the unitary stored in the file"
 }

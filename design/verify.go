@@ -128,7 +128,7 @@ func VerifyFile(ctx context.Context, path string, opt VerifyOptions) (*Outcome, 
 	w := f.Waveform
 	model := waveform.ErrorModel{}
 	sp := defaultSweeps()
-	title, target, preset := "", "target stored in the file", ""
+	title, target, preset := "", targetLabel(w.Target), ""
 	if f.Spec != "" {
 		spec, err := ParseSpec([]byte(f.Spec), path+" (embedded spec)")
 		if err != nil {
