@@ -243,8 +243,14 @@ func TestLambdaRobust(t *testing.T) {
 		t.Fatal(err)
 	}
 	r := res.Robust
-	if r == nil || len(r.Nominal) != 9 || len(r.Robust) != 9 || r.RobustMean > r.NominalMean {
+	if r == nil || len(r.Nominal) != 9 || len(r.Robust) != 9 {
 		t.Fatalf("report %+v", r)
+	}
+	// The fallback to the nominal design (Kept) would make robust ≤
+	// nominal hold trivially; this ensemble is known to be improvable
+	// (measured ×1.11), so the robust stage must find a better loop.
+	if r.Kept || r.Improvement() < 1.05 {
+		t.Errorf("robust stage kept the nominal loop or improved the mean only ×%.3f", r.Improvement())
 	}
 	// The nominal member (ε = 0, δ = 0) of the nominal design is exact.
 	if r.Nominal[4] > 1e-12 {

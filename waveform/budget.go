@@ -87,10 +87,10 @@ func Budget(ctx context.Context, w *Waveform, m ErrorModel, opt *SweepOptions) (
 		amplitudeNote(w, m),
 		func(e *ErrorModel) { e.AmplitudeError, e.ChannelErrors = m.AmplitudeError, m.ChannelErrors })
 	add(m.OnePhotonDetuning != 0, "one-photon detuning",
-		fmt.Sprintf("Δ/2π = %.4g Hz on every excited level; alone on the ideal model", m.OnePhotonDetuning),
+		fmt.Sprintf("Δ/2π = %s on every excited level; alone on the ideal model", FormatSI(m.OnePhotonDetuning, "Hz")),
 		func(e *ErrorModel) { e.OnePhotonDetuning = m.OnePhotonDetuning })
 	add(m.TwoPhotonDetuning != 0, "two-photon detuning",
-		fmt.Sprintf("δ/2π = %.4g Hz on the second qubit level; alone on the ideal model", m.TwoPhotonDetuning),
+		fmt.Sprintf("δ/2π = %s on the second qubit level; alone on the ideal model", FormatSI(m.TwoPhotonDetuning, "Hz")),
 		func(e *ErrorModel) { e.TwoPhotonDetuning = m.TwoPhotonDetuning })
 	terms = append(terms, term{name: "total", model: m})
 
