@@ -3,6 +3,7 @@ package design
 import (
 	"io"
 	"math"
+	"path/filepath"
 
 	"github.com/loopgate/loopgate/design/report"
 	"github.com/loopgate/loopgate/holonomy"
@@ -26,16 +27,18 @@ const Caution = "loopgate computes waveforms from a model; it does not know your
 
 func writeReport(w io.Writer, d *report.Data) error { return report.Write(w, d) }
 
-// reportData fills the report from an outcome and its analysis.
+// reportData fills the report from an outcome and its analysis. The
+// source file is named by its base name only, so that the report does not
+// depend on the folder the spec was read from.
 func reportData(o *Outcome, w *waveform.Waveform, plan *waveform.Plan, a *analysis, preset string) *report.Data {
 	sc := w.Scheme
 	d := &report.Data{
 		Title:    o.Title,
-		Subtitle: o.Command + " of " + o.Source,
+		Subtitle: o.Command + " of " + filepath.Base(o.Source),
 		Gate:     o.Target,
 		Scheme:   schemeWords(sc),
 		Provenance: report.Provenance{
-			Version: Version, SpecHash: o.SpecHash, Seed: int64(o.Seed), Source: o.Source,
+			Version: Version, SpecHash: o.SpecHash, Seed: int64(o.Seed), Source: filepath.Base(o.Source),
 		},
 		Cautions: []string{Caution},
 	}
