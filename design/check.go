@@ -17,6 +17,12 @@ type CheckOptions struct {
 	// Target, if not empty, names the gate to compare with instead of the
 	// file's target (see Gates).
 	Target string
+	// Rabi is the peak Rabi frequency Ω/2π (Hz) the loop will be driven
+	// with. A loop file holds unit-scale points (peak Rabi frequency 1), so
+	// the scheme's static detunings enter the holonomy only relative to Ω:
+	// with Rabi > 0 they are scaled by it; with 0 they are left out, and a
+	// note says so when the scheme has any.
+	Rabi float64
 }
 
 // LoopCheck is what CheckLoopFile reports about a loop file.
@@ -35,6 +41,8 @@ type LoopCheck struct {
 	Leakage  float64 `json:"leakage"`
 	// Segments describes each segment.
 	Segments []SegmentCheck `json:"segments"`
+	// Notes qualify the result in words.
+	Notes []string `json:"notes,omitempty"`
 	// Pass reports whether Fidelity ≥ MinFidelity.
 	Pass        bool    `json:"pass"`
 	MinFidelity float64 `json:"min_fidelity"`
@@ -89,6 +97,22 @@ func CheckLoopFile(ctx context.Context, path string, opt CheckOptions) (*LoopChe
 		}
 		target, label = g.Matrix(), g.Symbol
 	}
+	detuned := false
+	for _, l := range lf.Scheme.Levels {
+		detuned = detuned || l.Detuning != 0
+	}
+	var note string
+	if opt.Rabi > 0 {
+		lf.Scheme = unitScheme(lf.Scheme, opt.Rabi)
+	} else {
+		lf.Scheme = unitScheme(lf.Scheme, 0)
+		for k := range lf.Scheme.Levels {
+			lf.Scheme.Levels[k].Detuning = 0
+		}
+		if detuned {
+			note = "the scheme's static detunings were left out: give the peak Rabi frequency (--rabi) to include them relative to it"
+		}
+	}
 	sc := lf.Scheme
 	n, d := sc.Dim(), len(sc.Computational)
 	if target.R != d {
@@ -131,6 +155,9 @@ func CheckLoopFile(ctx context.Context, path string, opt CheckOptions) (*LoopChe
 		holonomy.Mul(tmp, seg, total)
 		total.Copy(tmp)
 		out.Segments = append(out.Segments, segc)
+	}
+	if note != "" {
+		out.Notes = append(out.Notes, note)
 	}
 	out.Fidelity, out.Leakage = holonomy.GateFidelity(total, sc.Computational, target)
 	out.Pass = out.Fidelity >= out.MinFidelity

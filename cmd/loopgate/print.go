@@ -130,6 +130,9 @@ func printLoopCheck(w io.Writer, c *design.LoopCheck) {
 		}
 		fmt.Fprintln(w)
 	}
+	for _, n := range c.Notes {
+		fmt.Fprintf(w, "note        %s\n", n)
+	}
 	verdict := "pass"
 	if !c.Pass {
 		verdict = "FAIL"

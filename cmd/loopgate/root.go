@@ -226,6 +226,7 @@ func newCheckCmd() *cobra.Command {
 	var (
 		asJSON bool
 		target string
+		rabi   string
 	)
 	cmd := &cobra.Command{
 		Use:   "check loop.json",
@@ -238,12 +239,21 @@ the loop, and explains in words what the loop can and cannot do.`,
   loopgate check out/loop.json --target T --json`,
 		Args: inputArgs(cobra.ExactArgs(1)),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			res, err := design.CheckLoopFile(cmd.Context(), args[0], design.CheckOptions{Target: target})
+			opt := design.CheckOptions{Target: target}
+			if rabi != "" {
+				v, err := design.ParseQuantity(rabi, design.Frequency)
+				if err != nil || v <= 0 {
+					return &design.InputError{Err: fmt.Errorf("flag --rabi: %q is not a positive Rabi frequency Ω/2π such as \"20 MHz\"", rabi)}
+				}
+				opt.Rabi = v
+			}
+			res, err := design.CheckLoopFile(cmd.Context(), args[0], opt)
 			return emit(cmd, asJSON, res, res != nil, func(w io.Writer) { printLoopCheck(w, res) }, err)
 		},
 	}
 	cmd.Flags().BoolVar(&asJSON, "json", false, "print the outcome as JSON on stdout")
 	cmd.Flags().StringVar(&target, "target", "", "compare with this named gate instead of the file's target")
+	cmd.Flags().StringVar(&rabi, "rabi", "", `peak Rabi frequency Ω/2π the loop is driven with, e.g. "20 MHz" (scales the static detunings)`)
 	return cmd
 }
 
