@@ -5,6 +5,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"strings"
 	"syscall"
 	"testing"
 	"time"
@@ -28,7 +29,20 @@ func TestMain(m *testing.M) {
 func TestInterrupt(t *testing.T) {
 	dir := t.TempDir()
 	out := filepath.Join(dir, "out")
-	spec := filepath.Join("..", "..", "testdata", "demo-tripod-t.yaml")
+	// The demo with a 201×201 map: minutes of work, so the signal always
+	// arrives mid-run whatever the machine's speed.
+	src, err := os.ReadFile(filepath.Join("..", "..", "testdata", "demo-tripod-t.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	big := strings.NewReplacer("amplitude_points: 41", "amplitude_points: 201", "detuning_points: 41", "detuning_points: 201").Replace(string(src))
+	if big == string(src) {
+		t.Fatal("demo spec has no 41-point map to enlarge")
+	}
+	spec := filepath.Join(dir, "big.yaml")
+	if err := os.WriteFile(spec, []byte(big), 0o644); err != nil {
+		t.Fatal(err)
+	}
 	cmd := exec.Command(os.Args[0], "design", spec, "-o", out, "-q")
 	cmd.Env = append(os.Environ(), "LOOPGATE_AS_MAIN=1")
 	if err := cmd.Start(); err != nil {
@@ -38,7 +52,7 @@ func TestInterrupt(t *testing.T) {
 	if err := cmd.Process.Signal(syscall.SIGINT); err != nil {
 		t.Fatal(err)
 	}
-	err := cmd.Wait()
+	err = cmd.Wait()
 	var ee *exec.ExitError
 	if !errors.As(err, &ee) || ee.ExitCode() != 130 {
 		t.Fatalf("exit: %v; want code 130", err)
