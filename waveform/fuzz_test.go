@@ -3,6 +3,7 @@ package waveform
 import (
 	"bytes"
 	"errors"
+	"io"
 	"math"
 	"strings"
 	"testing"
@@ -61,24 +62,9 @@ func FuzzReadWaveform(f *testing.F) {
 	seeds(f, smallWaveformFile(f, ErrorModel{Filter: FirstOrderFilter, RiseTime: 3e-9, PhaseStep: 2 * math.Pi / 64}))
 	seeds(f, smallWaveformFile(f, ErrorModel{PhaseStep: math.Pi / 8}))
 	f.Fuzz(func(t *testing.T, data []byte) {
-		file, err := ReadWaveform(bytes.NewReader(data), "fuzz.json")
-		if err != nil {
-			var fe *FileError
-			if !errors.As(err, &fe) {
-				t.Fatalf("error is not a *FileError: %v", err)
-			}
+		file := fuzzRoundTrip(t, data, ReadWaveform, (*File).WriteJSON)
+		if file == nil {
 			return
-		}
-		var b1, b2 bytes.Buffer
-		if err := file.WriteJSON(&b1); err != nil {
-			t.Fatalf("a file that reads does not write: %v", err)
-		}
-		again, err := ReadWaveform(bytes.NewReader(b1.Bytes()), "again.json")
-		if err != nil {
-			t.Fatalf("a written file does not read: %v", err)
-		}
-		if err := again.WriteJSON(&b2); err != nil || !bytes.Equal(b1.Bytes(), b2.Bytes()) {
-			t.Fatalf("write → read → write is not stable (%v)", err)
 		}
 		// Small files must also verify without panicking (the slower
 		// density-matrix and filter paths are left to the unit tests).
@@ -97,24 +83,9 @@ func FuzzReadLoop(f *testing.F) {
 	lc.WriteJSON(&b)
 	seeds(f, b.Bytes())
 	f.Fuzz(func(t *testing.T, data []byte) {
-		l, err := ReadLoop(bytes.NewReader(data), "fuzz-loop.json")
-		if err != nil {
-			var fe *FileError
-			if !errors.As(err, &fe) {
-				t.Fatalf("error is not a *FileError: %v", err)
-			}
+		l := fuzzRoundTrip(t, data, ReadLoop, (*LoopFile).WriteJSON)
+		if l == nil {
 			return
-		}
-		var b1, b2 bytes.Buffer
-		if err := l.WriteJSON(&b1); err != nil {
-			t.Fatalf("a loop file that reads does not write: %v", err)
-		}
-		again, err := ReadLoop(bytes.NewReader(b1.Bytes()), "again.json")
-		if err != nil {
-			t.Fatalf("a written loop file does not read: %v", err)
-		}
-		if err := again.WriteJSON(&b2); err != nil || !bytes.Equal(b1.Bytes(), b2.Bytes()) {
-			t.Fatalf("write → read → write is not stable (%v)", err)
 		}
 		for i := range l.Segments {
 			pt := l.Scheme.NewPoint()
@@ -123,4 +94,31 @@ func FuzzReadLoop(f *testing.F) {
 			}
 		}
 	})
+}
+
+// fuzzRoundTrip reads data with read: a failure must be a *FileError (nil
+// is returned); a success must write back, re-read and write again to the
+// same bytes (the value read is returned).
+func fuzzRoundTrip[T any](t *testing.T, data []byte, read func(io.Reader, string) (*T, error), write func(*T, io.Writer) error) *T {
+	t.Helper()
+	v, err := read(bytes.NewReader(data), "fuzz.json")
+	if err != nil {
+		var fe *FileError
+		if !errors.As(err, &fe) {
+			t.Fatalf("error is not a *FileError: %v", err)
+		}
+		return nil
+	}
+	var b1, b2 bytes.Buffer
+	if err := write(v, &b1); err != nil {
+		t.Fatalf("a file that reads does not write: %v", err)
+	}
+	again, err := read(bytes.NewReader(b1.Bytes()), "again.json")
+	if err != nil {
+		t.Fatalf("a written file does not read: %v", err)
+	}
+	if err := write(again, &b2); err != nil || !bytes.Equal(b1.Bytes(), b2.Bytes()) {
+		t.Fatalf("write → read → write is not stable (%v)", err)
+	}
+	return v
 }

@@ -85,36 +85,24 @@ func contourLines(x, y []float64, z [][]float64, level float64) [][][2]float64 {
 		}
 		used[n0] = true
 		// Walk forward from s0.b, then backward from s0.a.
-		fwd := []edge{s0.a, s0.b}
-		for e, cur := s0.b, n0; ; {
-			n := next(e, cur)
-			if n < 0 {
-				break
+		walk := func(e edge, cur int, out []edge) []edge {
+			for {
+				n := next(e, cur)
+				if n < 0 {
+					return out
+				}
+				used[n] = true
+				if segs[n].a == e {
+					e = segs[n].b
+				} else {
+					e = segs[n].a
+				}
+				out = append(out, e)
+				cur = n
 			}
-			used[n] = true
-			if segs[n].a == e {
-				e = segs[n].b
-			} else {
-				e = segs[n].a
-			}
-			fwd = append(fwd, e)
-			cur = n
 		}
-		var back []edge
-		for e, cur := s0.a, n0; ; {
-			n := next(e, cur)
-			if n < 0 {
-				break
-			}
-			used[n] = true
-			if segs[n].a == e {
-				e = segs[n].b
-			} else {
-				e = segs[n].a
-			}
-			back = append(back, e)
-			cur = n
-		}
+		fwd := walk(s0.b, n0, []edge{s0.a, s0.b})
+		back := walk(s0.a, n0, nil)
 		line := make([][2]float64, 0, len(back)+len(fwd))
 		for k := len(back) - 1; k >= 0; k-- {
 			line = append(line, point(back[k]))
