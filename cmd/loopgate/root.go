@@ -50,7 +50,7 @@ times in seconds.
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
 		return &design.InputError{Err: fmt.Errorf("%w (see '%s --help')", err, c.CommandPath())}
 	})
-	root.AddCommand(newDesignCmd(), newVerifyCmd(), newCheckCmd(), newSchemaCmd(), newStarterCmd(), newGatesCmd())
+	root.AddCommand(newDesignCmd(), newVerifyCmd(), newCheckCmd(), newSchemaCmd(), newStarterCmd(), newGatesCmd(), newBatchCmd())
 	return root
 }
 
