@@ -95,7 +95,7 @@ func Collect(work string) (*Summary, error) {
 			s.Counts.NotRun++
 		}
 		if row.Status != StatusPassed {
-			bad = append(bad, row.ID+" "+row.Status)
+			bad = append(bad, row.ID+" ("+row.Status+")")
 		}
 	}
 	s.Counts.Tasks = len(s.Tasks)
@@ -113,7 +113,7 @@ func Collect(work string) (*Summary, error) {
 		}
 	}
 	if len(bad) > 0 {
-		return s, unfinishedError(bad)
+		return s, &NotPassedError{Tasks: bad, Of: len(s.Tasks), cause: unfinishedError(bad)}
 	}
 	return s, nil
 }

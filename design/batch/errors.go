@@ -26,6 +26,8 @@ var (
 	ErrBadGate = errors.New("bad gate list")
 	// ErrTaskFailed: a task ended without outputs.
 	ErrTaskFailed = errors.New("task failed")
+	// ErrNotPassed: a collected task did not pass, failed or has not run.
+	ErrNotPassed = errors.New("not every task passed")
 )
 
 // Problem is one thing wrong with the inputs of a plan.
@@ -77,10 +79,17 @@ func (e *PlanError) Error() string {
 func (p Problem) format(table string) string {
 	var b strings.Builder
 	b.WriteString(table)
+	if p.Kind == ErrBadGate {
+		b.Reset()
+		b.WriteString("gate list")
+		if p.Value != "" {
+			fmt.Fprintf(&b, ", entry %q", p.Value)
+		}
+	}
 	if p.Row > 0 {
 		fmt.Fprintf(&b, " row %d", p.Row)
 	}
-	if p.Column != "" {
+	if p.Column != "" && p.Kind != ErrBadGate {
 		fmt.Fprintf(&b, ", column %s", p.Column)
 		if p.Value != "" {
 			fmt.Fprintf(&b, " = %q", p.Value)
@@ -156,3 +165,27 @@ func (e *TasksFailedError) Unwrap() []error {
 	}
 	return errs
 }
+
+// NotPassedError reports, after a collect, the tasks that did not pass:
+// a check failed, the task failed, or it has not run. The summary was
+// written. Its exit code is that of a failed check (3).
+type NotPassedError struct {
+	// Tasks lists each such task as "ID (status)".
+	Tasks []string
+	// Of is the number of tasks in the plan.
+	Of    int
+	cause error
+}
+
+// Error names the tasks that did not pass.
+func (e *NotPassedError) Error() string {
+	list := e.Tasks
+	more := ""
+	if len(list) > maxShown {
+		list, more = list[:maxShown], fmt.Sprintf(", ... and %d more", len(e.Tasks)-maxShown)
+	}
+	return fmt.Sprintf("%d of %d tasks did not pass: %s%s", len(e.Tasks), e.Of, strings.Join(list, ", "), more)
+}
+
+// Unwrap returns ErrNotPassed and the pipeline's failed-check error.
+func (e *NotPassedError) Unwrap() []error { return []error{ErrNotPassed, e.cause} }

@@ -10,6 +10,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"sort"
 	"strings"
 )
 
@@ -78,9 +79,12 @@ func checkInputs(base []byte, baseName string, table []byte, tableName string, g
 		return nil, nil, inputError(err)
 	}
 	t, probs := readTable(table, tableName)
-	if len(probs) > 0 {
+	if t == nil {
 		return nil, nil, inputError(&PlanError{Table: tableName, Problems: probs})
 	}
+	// Columns and gates first: with one of them wrong, every row would
+	// repeat the problem.
+	nrow := len(probs)
 	for _, c := range t.Columns {
 		if err := b.checkColumn(c); err != nil {
 			probs = append(probs, Problem{Row: 1, Column: c, Msg: err.Error(), Kind: ErrUnknownColumn})
@@ -88,7 +92,7 @@ func checkInputs(base []byte, baseName string, table []byte, tableName string, g
 	}
 	canon, gprobs := b.checkGates(gates)
 	probs = append(probs, gprobs...)
-	if len(probs) > 0 {
+	if len(probs) > nrow {
 		return nil, nil, inputError(&PlanError{Table: tableName, Problems: probs})
 	}
 	m := &Manifest{Kind: manifestKind, ToolVersion: ToolVersion, Base: baseName, BaseSHA256: sha256Hex(base),
@@ -114,6 +118,7 @@ func checkInputs(base []byte, baseName string, table []byte, tableName string, g
 		}
 	}
 	if len(probs) > 0 {
+		sort.SliceStable(probs, func(i, j int) bool { return probs[i].Row < probs[j].Row })
 		return nil, nil, inputError(&PlanError{Table: tableName, Problems: probs})
 	}
 	return m, specs, nil
@@ -131,19 +136,19 @@ func (b *baseSpec) checkGates(gates []string) ([]string, []Problem) {
 	for _, g := range gates {
 		data, err := b.taskSpecBytes(&Table{}, &Row{}, g)
 		if err != nil {
-			probs = append(probs, Problem{Msg: fmt.Sprintf("gate %q: %v", g, err), Kind: ErrBadGate})
+			probs = append(probs, Problem{Value: g, Msg: err.Error(), Kind: ErrBadGate})
 			continue
 		}
 		ts, sp, err := parseSpec(data, b.name)
 		switch {
 		case err != nil:
-			probs = append(probs, Problem{Msg: fmt.Sprintf("gate %q: %v", g, err), Kind: ErrBadGate})
+			probs = append(probs, Problem{Value: g, Msg: err.Error(), Kind: ErrBadGate})
 		case len(sp) > 0:
 			for _, p := range sp {
-				probs = append(probs, Problem{Field: p.Field, Msg: fmt.Sprintf("gate %q: %s", g, p.Msg), Kind: ErrBadGate})
+				probs = append(probs, Problem{Value: g, Field: p.Field, Msg: p.Msg, Kind: ErrBadGate})
 			}
 		case first[ts.Gate] != "":
-			probs = append(probs, Problem{Msg: fmt.Sprintf("gate %q is gate %s again (given as %q before)", g, ts.Gate, first[ts.Gate]), Kind: ErrBadGate})
+			probs = append(probs, Problem{Value: g, Msg: fmt.Sprintf("is gate %s again (given as %q before); each gate once", ts.Gate, first[ts.Gate]), Kind: ErrBadGate})
 		default:
 			first[ts.Gate] = g
 			canon = append(canon, ts.Gate)

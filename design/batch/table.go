@@ -53,7 +53,8 @@ type Row struct {
 // readTable reads a CSV calibration table. It checks the header (one
 // qubit column, no empty or repeated header), the qubit names (form and
 // uniqueness) and that the table has rows; the cells are checked later,
-// as specs. Every problem found is returned.
+// as specs. Every problem found is returned; the table comes back too
+// when only qubit names are wrong, so that the cells can still be checked.
 func readTable(data []byte, name string) (*Table, []Problem) {
 	t := &Table{Name: name}
 	bad := func(row int, col, field, msg string, kind error) []Problem {
@@ -134,12 +135,14 @@ func readTable(data []byte, name string) (*Table, []Problem) {
 		t.Rows = append(t.Rows, row)
 	}
 	if len(t.Rows) == 0 && len(probs) == 0 {
-		probs = append(probs, Problem{Row: 0, Msg: "the table has a header but no qubit rows", Kind: ErrEmptyTable})
+		return nil, []Problem{{Msg: "the table has a header but no qubit rows", Kind: ErrEmptyTable}}
 	}
-	if len(probs) > 0 {
-		return nil, probs
+	for _, p := range probs {
+		if p.Kind != ErrDuplicateQubit && p.Column != t.QubitColumn {
+			return nil, probs // the rows could not all be read
+		}
 	}
-	return t, nil
+	return t, probs
 }
 
 func csvLine(err error) int {

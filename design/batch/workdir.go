@@ -9,6 +9,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"strings"
 	"time"
 )
 
@@ -64,6 +65,9 @@ func Plan(ctx context.Context, opt PlanOptions) (*PlanResult, error) {
 	work, err := filepath.Abs(opt.Work)
 	if err != nil {
 		return nil, outputError(err)
+	}
+	if strings.ContainsAny(work, " \t\n\r'\"\\") {
+		return nil, inputError(fmt.Errorf("work folder %q: the batch script's #SBATCH lines cannot hold a path with blanks or quotes; choose another folder", work))
 	}
 	mbytes, err := json.MarshalIndent(m, "", "  ")
 	if err != nil {
