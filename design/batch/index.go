@@ -116,7 +116,7 @@ func chipFigure(s *Summary) figure {
 		f.Panels = append(f.Panels, p)
 		x += p.Width + panelGap
 	}
-	f.Width = math.Max(x-panelGap, 320)
+	f.Width = math.Max(x-panelGap, 360) // room for the legend's last label
 	f.LegendY = labelSpace + size*float64(rows) + 14
 	f.Height = f.LegendY + legendH
 	w := math.Min(f.Width, 320) / float64(hi-lo)
@@ -170,7 +170,7 @@ const indexHTML = `<!DOCTYPE html>
 body { font: 14px/1.4 system-ui, sans-serif; margin: 2em; color: #222; max-width: 1100px; }
 table { border-collapse: collapse; margin-top: 1em; }
 th, td { padding: 3px 8px; border-bottom: 1px solid #ddd; text-align: right; }
-th:first-child, td:first-child, td.t { text-align: left; }
+th:first-child, td:first-child, .t { text-align: left; }
 .passed { color: #1a7f37; } .failed, .not-run { color: #b42318; } .checks-failed { color: #b54708; }
 svg text { font: 11px system-ui, sans-serif; }
 .caution { border-left: 4px solid #b54708; padding: 0.5em 1em; background: #fff8f0; }
@@ -201,7 +201,7 @@ under the spec's error model (log scale). Click a square for its report.{{if .Fi
 </svg>
 <h2>Every task</h2>
 <table>
-<tr><th>qubit</th><th>gate</th><th>row</th><th>status</th><th>ideal F</th><th>F, error model</th><th>1 − F, error model</th><th>duration (s)</th><th>report</th></tr>
+<tr><th>qubit</th><th class="t">gate</th><th>row</th><th class="t">status</th><th>ideal F</th><th>F, error model</th><th>1 − F, error model</th><th>duration (s)</th><th>report</th></tr>
 {{- range .S.Tasks}}
 <tr><td>{{.Qubit}}</td><td class="t">{{.Gate}}</td><td>{{.Row}}</td><td class="t {{.Status | printf "%s" | cls}}">{{.Status}}{{if .FailedChecks}}: {{join .FailedChecks}}{{end}}{{if .Message}}: {{.Message}}{{end}}</td>
 <td>{{num .IdealFidelity 8}}</td><td>{{num .ErrorModelFidelity 8}}</td><td>{{num .ErrorModelInfidelity 3}}</td><td>{{num .Duration 4}}</td>
