@@ -244,6 +244,10 @@ func runTask(ctx context.Context, work string, t *Task) (TaskRun, *TaskFailure, 
 	}
 	if err := os.Rename(out, final); err != nil {
 		os.RemoveAll(out)
+		if finished(final) { // another run (without locks) finished it first
+			run.State = StateSkipped
+			return run, nil, nil
+		}
 		return run, nil, outputError(fmt.Errorf("task %s: %w", t.ID, err))
 	}
 	syncDir(filepath.Join(work, tasksDir))

@@ -205,3 +205,25 @@ func TestRunFailureRecorded(t *testing.T) {
 		t.Errorf("second run: %+v %v", runs, err)
 	}
 }
+
+// TestRunBusy: a task whose scratch folder another run holds is left to
+// that run, and is run once the lock is released.
+func TestRunBusy(t *testing.T) {
+	work, err := planTable(t, "site,errors.amplitude\nt0,0.01\n", "X")
+	if err != nil {
+		t.Fatal(err)
+	}
+	unlock, busy, err := lockScratch(filepath.Join(work, scratchDir, "t0-X"))
+	if err != nil || busy {
+		t.Fatalf("lock: busy %v, %v", busy, err)
+	}
+	runs, err := Run(context.Background(), RunOptions{Work: work, ArrayIndex: -1})
+	if err != nil || runs[0].State != StateBusy || finished(filepath.Join(work, tasksDir, "t0-X")) {
+		t.Errorf("run while locked: %+v %v", runs, err)
+	}
+	unlock()
+	runs, err = Run(context.Background(), RunOptions{Work: work, ArrayIndex: -1})
+	if err != nil || runs[0].State != StateDone {
+		t.Errorf("run after unlock: %+v %v", runs, err)
+	}
+}
