@@ -153,7 +153,11 @@ func (s *Slurm) script(m *Manifest, work string, cost *Cost) string {
 	t, mem := s.requests(cost, per)
 	var b strings.Builder
 	w := func(format string, args ...any) { fmt.Fprintf(&b, format+"\n", args...) }
-	w("#!/bin/bash")
+	if len(s.Modules) > 0 {
+		w("#!/bin/bash -l") // a login shell defines the module command
+	} else {
+		w("#!/bin/bash")
+	}
 	w("# Written by loopgate batch plan %s: %d tasks (%d qubits × %d gates: %s),", ToolVersion, len(m.Tasks), len(m.Qubits), len(m.Gates), strings.Join(m.Gates, " "))
 	w("# %d per array task, %d array tasks, at most %d at once.", per, size, throttle)
 	switch {

@@ -70,7 +70,7 @@ func TestScript(t *testing.T) {
 	}
 	got := s.script(m, "/scratch/my-work", &Cost{Task: "a-H", WallSeconds: 2, PeakBytes: 40 << 20})
 	for _, want := range []string{
-		"#SBATCH --array=0-5%4\n", "#SBATCH --time=00:05:00\n", "#SBATCH --mem=256M\n", "#SBATCH --partition=short\n",
+		"#!/bin/bash -l\n", "#SBATCH --array=0-5%4\n", "#SBATCH --time=00:05:00\n", "#SBATCH --mem=256M\n", "#SBATCH --partition=short\n",
 		"#SBATCH --account=qlab\n", "#SBATCH --qos=normal\n", "#SBATCH --chdir=/scratch/my-work\n", "module load go/1.26\nexport X=1\n",
 		`exec /opt/loopgate/bin/loopgate batch run . --array-index "$SLURM_ARRAY_TASK_ID" --per-index 1`,
 	} {
