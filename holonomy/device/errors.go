@@ -96,7 +96,7 @@ type StepLimitError struct {
 }
 
 func (e *StepLimitError) Error() string {
-	return fmt.Sprintf("propagation needs %d sub-steps, more than the limit %d: sample %d alone needs %d (fastest rate ν = %.4g rad/s = 2π·%.4g MHz over %.4g s at ν·h ≤ %g); choose a frame closer to the carriers or turn counter-rotating terms off",
+	return fmt.Sprintf("propagation needs at least %d sub-steps, more than the limit %d: sample %d alone needs %d (fastest rate ν = %.4g rad/s = 2π·%.4g MHz over %.4g s at ν·h ≤ %g); choose a frame closer to the carriers or turn counter-rotating terms off",
 		e.Needed, e.Limit, e.Sample, e.SampleSteps, e.Rate, e.Rate/(2e6*3.141592653589793), e.Dt, e.StepPhase)
 }
 
