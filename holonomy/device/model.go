@@ -257,11 +257,10 @@ func (m *Model) Hamiltonian(dst *holonomy.Mat, p holonomy.Point, t float64) {
 	}
 }
 
-// ToLab writes into dst (n entries) the phases that take a state from the
-// model's frame at time t to the frame of bare energies with the level
-// phases of the laboratory frame removed: ψ_lab,k = e^{−iF_k t} ψ_frame,k.
-// Multiply U_frame row k by dst[k] (and column j by conj(dst[j]) for t = 0
-// start, which is 1) to compare frames.
+// ToLab writes into dst (n entries) the phases e^{−iF_k t} that take a
+// state from the model's frame to the laboratory frame at time t:
+// ψ_lab,k = e^{−iF_k t} ψ_frame,k. The frames agree at t = 0, so a
+// propagator from 0 to t becomes U_lab = diag(dst)·U_frame.
 func (m *Model) ToLab(dst []complex128, t float64) {
 	for k, f := range m.frame {
 		s, c := math.Sincos(f * t)

@@ -14,7 +14,9 @@ import (
 // at rate 1/dt.
 func gaussianPi(m *Model, T, dt, alpha, beta float64) []holonomy.Point {
 	sigma := T / 4
-	g := func(t float64) float64 { return math.Exp(-(t-T/2)*(t-T/2)/(2*sigma*sigma)) - math.Exp(-T*T/(8*sigma*sigma)) }
+	g := func(t float64) float64 {
+		return math.Exp(-(t-T/2)*(t-T/2)/(2*sigma*sigma)) - math.Exp(-T*T/(8*sigma*sigma))
+	}
 	// Area of g by a fine midpoint sum.
 	var area float64
 	const fine = 20000
