@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"github.com/loopgate/loopgate/design/spec"
 	"math"
 	"math/cmplx"
 
@@ -91,7 +92,7 @@ func CheckLoopFile(ctx context.Context, path string, opt CheckOptions) (*LoopChe
 	}
 	target, label := lf.Target, targetLabel(lf.Target)
 	if opt.Target != "" {
-		g, ok := LookupGate(opt.Target)
+		g, ok := spec.LookupGate(opt.Target)
 		if !ok {
 			return nil, &InputError{Err: fmt.Errorf("flag --target: unknown gate %q (see 'loopgate gates')", opt.Target)}
 		}
@@ -277,7 +278,7 @@ func adiabaticityProduct(sc *holonomy.Scheme, loop holonomy.Loop, n int) (float6
 // targetLabel names a target stored in a file: the named gate it equals up
 // to a global phase, or its matrix.
 func targetLabel(u *holonomy.Mat) string {
-	for _, g := range Gates() {
+	for _, g := range spec.Gates() {
 		if u.R == 2 && optimize.Infidelity(u, g.Matrix()) < 1e-12 {
 			return g.Symbol + " (" + g.Title + "), stored in the file"
 		}

@@ -6,6 +6,7 @@ import (
 	"encoding/hex"
 	"flag"
 	"fmt"
+	"github.com/loopgate/loopgate/design/spec"
 	"os"
 	"path/filepath"
 	"sort"
@@ -77,24 +78,24 @@ func goldenRun(t *testing.T) map[string]string {
 	}
 	root := t.TempDir()
 	seed := goldenSeed
-	run := func(name string, spec *Spec) {
+	run := func(name string, spc *spec.Spec) {
 		dir := filepath.Join(root, name)
-		if _, err := Design(context.Background(), spec, Options{OutDir: dir, Seed: &seed}); err != nil {
+		if _, err := Design(context.Background(), spc, Options{OutDir: dir, Seed: &seed}); err != nil {
 			t.Fatalf("%s: %v", name, err)
 		}
 	}
 	for _, p := range demos {
-		spec, err := LoadSpec(p)
+		spc, err := spec.LoadSpec(p)
 		if err != nil {
 			t.Fatal(err)
 		}
-		run(strings.TrimSuffix(filepath.Base(p), ".yaml"), spec)
+		run(strings.TrimSuffix(filepath.Base(p), ".yaml"), spc)
 	}
-	spec, err := LoadDemoSpec()
+	spc, err := spec.LoadDemoSpec()
 	if err != nil {
 		t.Fatal(err)
 	}
-	run("builtin", spec)
+	run("builtin", spc)
 
 	first := strings.TrimSuffix(filepath.Base(demos[0]), ".yaml")
 	vdir := filepath.Join(root, "verify-"+first)

@@ -3,6 +3,7 @@ package design
 import (
 	"context"
 	"fmt"
+	"github.com/loopgate/loopgate/design/spec"
 	"io"
 	"math"
 	"os"
@@ -27,11 +28,11 @@ type ErrorFlags struct {
 
 // apply parses the flags into m.
 func (f ErrorFlags) apply(m *waveform.ErrorModel) error {
-	set := func(flag, text string, dim Dimension, dst *float64) error {
+	set := func(flag, text string, dim spec.Dimension, dst *float64) error {
 		if text == "" {
 			return nil
 		}
-		v, err := ParseQuantity(text, dim)
+		v, err := spec.ParseQuantity(text, dim)
 		if err != nil {
 			return &InputError{Err: fmt.Errorf("flag --%s: %w", flag, err)}
 		}
@@ -40,22 +41,22 @@ func (f ErrorFlags) apply(m *waveform.ErrorModel) error {
 	}
 	for _, s := range []struct {
 		flag, text string
-		dim        Dimension
+		dim        spec.Dimension
 		dst        *float64
 	}{
-		{"amplitude-error", f.Amplitude, Number, &m.AmplitudeError},
-		{"one-photon-detuning", f.OnePhoton, Frequency, &m.OnePhotonDetuning},
-		{"two-photon-detuning", f.TwoPhoton, Frequency, &m.TwoPhotonDetuning},
-		{"decay", f.Decay, Rate, &m.Decay},
-		{"dephasing", f.Dephasing, Rate, &m.Dephasing},
-		{"rise-time", f.RiseTime, Time, &m.RiseTime},
+		{"amplitude-error", f.Amplitude, spec.Number, &m.AmplitudeError},
+		{"one-photon-detuning", f.OnePhoton, spec.Frequency, &m.OnePhotonDetuning},
+		{"two-photon-detuning", f.TwoPhoton, spec.Frequency, &m.TwoPhotonDetuning},
+		{"decay", f.Decay, spec.Rate, &m.Decay},
+		{"dephasing", f.Dephasing, spec.Rate, &m.Dephasing},
+		{"rise-time", f.RiseTime, spec.Time, &m.RiseTime},
 	} {
 		if err := set(s.flag, s.text, s.dim, s.dst); err != nil {
 			return err
 		}
 	}
 	if f.PhaseStep != "" {
-		v, err := ParseQuantity(f.PhaseStep, Angle)
+		v, err := spec.ParseQuantity(f.PhaseStep, spec.Angle)
 		if err != nil {
 			return &InputError{Err: fmt.Errorf("flag --phase-step: %w", err)}
 		}
@@ -130,12 +131,12 @@ func VerifyFile(ctx context.Context, path string, opt VerifyOptions) (*Outcome, 
 	sp := defaultSweeps()
 	title, target, preset := "", targetLabel(w.Target), ""
 	if f.Spec != "" {
-		spec, err := ParseSpec([]byte(f.Spec), path+" (embedded spec)")
+		spc, err := spec.ParseSpec([]byte(f.Spec), path+" (embedded spec)")
 		if err != nil {
 			return nil, &InputError{Err: err}
 		}
-		model, sp = errorModelOf(spec), sweepsOf(spec, w.Duration())
-		title, target, preset = spec.Title, spec.Target.Label, spec.Preset
+		model, sp = errorModelOf(spc), sweepsOf(spc, w.Duration())
+		title, target, preset = spc.Title, spc.Target.Label, spc.Preset
 	}
 	_ = preset
 	if err := opt.Errors.apply(&model); err != nil {

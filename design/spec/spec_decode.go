@@ -1,4 +1,4 @@
-package design
+package spec
 
 import (
 	"encoding/json"
@@ -371,7 +371,7 @@ func (d *decoder) scheme(s *Spec, m map[string]any, path string) {
 	} else if !hasPreset {
 		d.bad(path+".qubit", "missing; name the two qubit levels, |0⟩ first, e.g. [g0, g1]")
 	}
-	if !isSpin(s.Preset) {
+	if !IsSpinPreset(s.Preset) {
 		s.Excited = excitedLevels(sc)
 	}
 }
@@ -688,8 +688,8 @@ func defaultKind(s *Spec) DetuningKind {
 	return OnePhoton
 }
 
-// isSpin reports whether preset is a spin ladder.
-func isSpin(preset string) bool { return preset == "spin" || preset == "spin-1/2" }
+// IsSpinPreset reports whether preset is a spin ladder.
+func IsSpinPreset(preset string) bool { return preset == "spin" || preset == "spin-1/2" }
 
 func (d *decoder) kind(m map[string]any, key, path string) (DetuningKind, bool) {
 	switch v := m[key]; v {

@@ -1,4 +1,4 @@
-package design
+package spec
 
 import (
 	"fmt"
@@ -250,7 +250,7 @@ func (s *Spec) checkWorkingSubspace(c *checker) {
 			sc.Levels[q0].Name, sc.Levels[q1].Name)
 		return
 	}
-	if isSpin(s.Preset) {
+	if IsSpinPreset(s.Preset) {
 		return
 	}
 	rabi := math.Inf(1)
