@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"github.com/loopgate/loopgate/design/spec"
+	"github.com/loopgate/loopgate/waveform/wavefile"
 	"math"
 	"math/cmplx"
 
@@ -86,7 +87,7 @@ func CheckLoopFile(ctx context.Context, path string, opt CheckOptions) (*LoopChe
 		return nil, err
 	}
 	defer r.Close()
-	lf, err := waveform.ReadLoop(r, path)
+	lf, err := wavefile.ReadLoop(r, path)
 	if err != nil {
 		return nil, &InputError{Err: err}
 	}

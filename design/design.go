@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"github.com/loopgate/loopgate/design/spec"
+	"github.com/loopgate/loopgate/waveform/wavefile"
 	"io"
 	"math"
 	"math/cmplx"
@@ -115,7 +116,7 @@ func Design(ctx context.Context, spc *spec.Spec, opt Options) (*Outcome, error) 
 		return nil, err
 	}
 
-	file := &waveform.File{
+	file := &wavefile.File{
 		ToolVersion:  Version,
 		SpecSHA256:   spc.Hash(),
 		Seed:         seed,
@@ -123,7 +124,7 @@ func Design(ctx context.Context, spc *spec.Spec, opt Options) (*Outcome, error) 
 		Waveform:     w,
 		Verification: a.ideal,
 	}
-	lf, err := waveform.NewLoopFile(sol.plan, sol.family, sol.params, loopFilePoints)
+	lf, err := wavefile.NewLoopFile(sol.plan, sol.family, sol.params, loopFilePoints)
 	if err != nil {
 		return nil, fmt.Errorf("design: loop file: %w", err)
 	}
@@ -137,8 +138,8 @@ func Design(ctx context.Context, spc *spec.Spec, opt Options) (*Outcome, error) 
 
 	writers := []func(io.Writer) error{
 		file.WriteJSON,
-		func(wr io.Writer) error { return waveform.WriteCSV(wr, w) },
-		func(wr io.Writer) error { return waveform.WriteNPY(wr, w) },
+		func(wr io.Writer) error { return wavefile.WriteCSV(wr, w) },
+		func(wr io.Writer) error { return wavefile.WriteNPY(wr, w) },
 		lf.WriteJSON,
 	}
 	if !opt.NoReport {

@@ -5,6 +5,7 @@ import (
 	"context"
 	"errors"
 	"github.com/loopgate/loopgate/design/spec"
+	"github.com/loopgate/loopgate/waveform/wavefile"
 	"math"
 	"os"
 	"path/filepath"
@@ -395,7 +396,7 @@ func TestRobustDesign(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer f.Close()
-	file, err := waveform.ReadWaveform(f, "waveform.json")
+	file, err := wavefile.ReadWaveform(f, "waveform.json")
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"github.com/loopgate/loopgate/design/spec"
+	"github.com/loopgate/loopgate/waveform/wavefile"
 	"io"
 	"math"
 	"os"
@@ -115,7 +116,7 @@ func VerifyFile(ctx context.Context, path string, opt VerifyOptions) (*Outcome, 
 	if err != nil {
 		return nil, err
 	}
-	if f.Spec != "" && waveform.SpecHash([]byte(f.Spec)) != f.SpecSHA256 {
+	if f.Spec != "" && wavefile.SpecHash([]byte(f.Spec)) != f.SpecSHA256 {
 		return nil, &InputError{Err: fmt.Errorf("waveform %s: /spec: the spec text does not match /spec_sha256 (the file was edited)", path)}
 	}
 	if opt.Report != "" {
@@ -173,13 +174,13 @@ func VerifyFile(ctx context.Context, path string, opt VerifyOptions) (*Outcome, 
 
 // readWaveformFile opens and reads a waveform file with clear messages
 // for a missing file, a directory or an empty file.
-func readWaveformFile(path string) (*waveform.File, error) {
+func readWaveformFile(path string) (*wavefile.File, error) {
 	r, err := openInput(path, "waveform file")
 	if err != nil {
 		return nil, err
 	}
 	defer r.Close()
-	f, err := waveform.ReadWaveform(r, path)
+	f, err := wavefile.ReadWaveform(r, path)
 	if err != nil {
 		return nil, &InputError{Err: err}
 	}

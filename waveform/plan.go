@@ -33,7 +33,7 @@ func (k Kind) String() string {
 	return fmt.Sprintf("Kind(%d)", int(k))
 }
 
-func parseKind(s string) (Kind, error) {
+func ParseKind(s string) (Kind, error) {
 	switch s {
 	case "adiabatic":
 		return Adiabatic, nil
@@ -168,11 +168,11 @@ func (h *Hardware) Validate(nch int) error {
 	return nil
 }
 
-// maxCode returns the largest DAC code, 2^(bits−1) − 1.
-func (h *Hardware) maxCode() float64 { return float64(int64(1)<<(h.DACBits-1) - 1) }
+// MaxCode returns the largest DAC code, 2^(bits−1) − 1.
+func (h *Hardware) MaxCode() float64 { return float64(int64(1)<<(h.DACBits-1) - 1) }
 
 // lsb returns the drive step (Hz) of one DAC code on channel c.
-func (h *Hardware) lsb(c int) float64 { return h.FullScale[c] / h.maxCode() }
+func (h *Hardware) lsb(c int) float64 { return h.FullScale[c] / h.MaxCode() }
 
 // clone returns a deep copy.
 func (h Hardware) clone() Hardware {
@@ -181,9 +181,9 @@ func (h Hardware) clone() Hardware {
 	return h
 }
 
-// validate checks the plan's shape and dimensions; it evaluates each shape
+// Validate checks the plan's shape and dimensions; it evaluates each shape
 // at s = 0 and s = 1.
-func (p *Plan) validate() error {
+func (p *Plan) Validate() error {
 	if p.Scheme == nil {
 		return errors.New("plan has no level scheme")
 	}
@@ -311,19 +311,19 @@ func pointNorm(a holonomy.Point) float64 {
 func finite(x float64) bool   { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 func positive(x float64) bool { return finite(x) && x > 0 }
 
-// canonScheme returns a deep copy of s whose level detunings are exactly
+// CanonScheme returns a deep copy of s whose level detunings are exactly
 // 2π·hz[k] with hz[k] = Detuning/2π, so that writing hz to a file and
 // reading it back reproduces the scheme bit for bit.
-func canonScheme(s *holonomy.Scheme) (*holonomy.Scheme, []float64) {
+func CanonScheme(s *holonomy.Scheme) (*holonomy.Scheme, []float64) {
 	hz := make([]float64, len(s.Levels))
 	for k, l := range s.Levels {
 		hz[k] = l.Detuning / (2 * math.Pi)
 	}
-	return schemeFromHz(s, hz), hz
+	return SchemeFromHz(s, hz), hz
 }
 
-// schemeFromHz returns a deep copy of s with level detunings 2π·hz.
-func schemeFromHz(s *holonomy.Scheme, hz []float64) *holonomy.Scheme {
+// SchemeFromHz returns a deep copy of s with level detunings 2π·hz.
+func SchemeFromHz(s *holonomy.Scheme, hz []float64) *holonomy.Scheme {
 	c := &holonomy.Scheme{
 		Name:          s.Name,
 		Levels:        append([]holonomy.Level(nil), s.Levels...),

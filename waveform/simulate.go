@@ -101,9 +101,9 @@ func (k FilterKind) String() string {
 	return fmt.Sprintf("FilterKind(%d)", int(k))
 }
 
-// filterName returns the name of m's filter as written in waveform files:
+// FilterName returns the name of m's filter as written in waveform files:
 // "none" without a rise time, else the filter kind's name.
-func (m *ErrorModel) filterName() string {
+func (m *ErrorModel) FilterName() string {
 	if m.RiseTime == 0 {
 		return "none"
 	}
