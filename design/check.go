@@ -10,7 +10,6 @@ import (
 	"math/cmplx"
 
 	"github.com/loopgate/loopgate/holonomy"
-	"github.com/loopgate/loopgate/optimize"
 	"github.com/loopgate/loopgate/waveform"
 )
 
@@ -280,7 +279,7 @@ func adiabaticityProduct(sc *holonomy.Scheme, loop holonomy.Loop, n int) (float6
 // to a global phase, or its matrix.
 func targetLabel(u *holonomy.Mat) string {
 	for _, g := range spec.Gates() {
-		if u.R == 2 && optimize.Infidelity(u, g.Matrix()) < 1e-12 {
+		if u.R == 2 && holonomy.BlockInfidelity(u, g.Matrix()) < 1e-12 {
 			return g.Symbol + " (" + g.Title + "), stored in the file"
 		}
 	}

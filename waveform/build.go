@@ -450,7 +450,7 @@ func (b *builder) timeAdiabatic(seg Segment) (*timing, error) {
 			maxU[c] = math.Max(maxU[c], math.Hypot(v[2*c], v[2*c+1]))
 		}
 		for _, x := range v {
-			if !finite(x) {
+			if !holonomy.Finite(x) {
 				return nil, fmt.Errorf("shape gives a non-finite point at s = %g", s)
 			}
 		}
@@ -955,7 +955,7 @@ func (w *Waveform) quantize() error {
 // codes beyond the int32 range are an error.
 func DACCode(x, fs, mc float64) (int32, error) {
 	v := math.Round(x / fs * mc)
-	if !finite(v) || math.Abs(v) > math.MaxInt32 {
+	if !holonomy.Finite(v) || math.Abs(v) > math.MaxInt32 {
 		return 0, fmt.Errorf("drive %g Hz is beyond any DAC code at full scale %g Hz", x, fs)
 	}
 	return int32(v), nil

@@ -372,26 +372,8 @@ func (d *decoder) scheme(s *Spec, m map[string]any, path string) {
 		d.bad(path+".qubit", "missing; name the two qubit levels, |0⟩ first, e.g. [g0, g1]")
 	}
 	if !IsSpinPreset(s.Preset) {
-		s.Excited = excitedLevels(sc)
+		s.Excited = sc.ExcitedLevels()
 	}
-}
-
-// excitedLevels returns the non-qubit levels that are the upper level of
-// some channel.
-func excitedLevels(sc *holonomy.Scheme) []int {
-	var ex []int
-	for k := range sc.Levels {
-		if contains(sc.Computational, k) {
-			continue
-		}
-		for _, c := range sc.Channels {
-			if c.Upper == k {
-				ex = append(ex, k)
-				break
-			}
-		}
-	}
-	return ex
 }
 
 func contains(s []int, x int) bool {
