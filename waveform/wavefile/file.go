@@ -1,10 +1,11 @@
-package waveform
+package wavefile
 
 import (
 	"crypto/sha256"
 	"encoding/hex"
 	"errors"
 	"fmt"
+	"github.com/loopgate/loopgate/waveform"
 	"io"
 	"math"
 
@@ -50,9 +51,9 @@ type File struct {
 	// Spec is the spec text.
 	Spec string
 	// Waveform is the waveform.
-	Waveform *Waveform
+	Waveform *waveform.Waveform
 	// Verification is the verification written with it.
-	Verification *Verification
+	Verification *waveform.Verification
 }
 
 // SpecHash returns the lower-case hexadecimal SHA-256 of spec.
@@ -213,7 +214,7 @@ func newMatDoc(m *holonomy.Mat) matDoc {
 	return d
 }
 
-func newCheckDocs(cs []Check) []checkDoc {
+func newCheckDocs(cs []waveform.Check) []checkDoc {
 	out := []checkDoc{}
 	for _, c := range cs {
 		b := "max"
@@ -243,7 +244,7 @@ func (f *File) doc() (*waveDoc, error) {
 		Format: WaveformFormat, Version: FormatVersion,
 		ToolVersion: f.ToolVersion, SpecSHA256: f.SpecSHA256, Seed: f.Seed,
 		Caution: Caution, Convention: Convention,
-		Scheme: newSchemeDoc(w.Scheme, w.levelHz),
+		Scheme: newSchemeDoc(w.Scheme, w.LevelHz),
 		Target: newMatDoc(w.Target),
 		Goals:  goalsDoc{MinFidelity: w.MinFidelity, Adiabaticity: w.Adiabaticity},
 		Hardware: hardwareDoc{
@@ -274,7 +275,7 @@ func (f *File) doc() (*waveDoc, error) {
 		Model: modelDoc{
 			AmplitudeError: m.AmplitudeError, ChannelErrors: orEmpty(m.ChannelErrors),
 			OnePhotonDetuning: m.OnePhotonDetuning, TwoPhotonDetuning: m.TwoPhotonDetuning,
-			Decay: m.Decay, Dephasing: m.Dephasing, Filter: m.filterName(), RiseTime: m.RiseTime, SubSteps: m.SubSteps,
+			Decay: m.Decay, Dephasing: m.Dephasing, Filter: m.FilterName(), RiseTime: m.RiseTime, SubSteps: m.SubSteps,
 			PhaseStep: m.PhaseStep, Quantized: !m.Unquantized,
 		},
 		Fidelity: v.Fidelity, Leakage: v.Leakage,

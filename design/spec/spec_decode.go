@@ -1,4 +1,4 @@
-package design
+package spec
 
 import (
 	"encoding/json"
@@ -371,27 +371,9 @@ func (d *decoder) scheme(s *Spec, m map[string]any, path string) {
 	} else if !hasPreset {
 		d.bad(path+".qubit", "missing; name the two qubit levels, |0⟩ first, e.g. [g0, g1]")
 	}
-	if !isSpin(s.Preset) {
-		s.Excited = excitedLevels(sc)
+	if !IsSpinPreset(s.Preset) {
+		s.Excited = sc.ExcitedLevels()
 	}
-}
-
-// excitedLevels returns the non-qubit levels that are the upper level of
-// some channel.
-func excitedLevels(sc *holonomy.Scheme) []int {
-	var ex []int
-	for k := range sc.Levels {
-		if contains(sc.Computational, k) {
-			continue
-		}
-		for _, c := range sc.Channels {
-			if c.Upper == k {
-				ex = append(ex, k)
-				break
-			}
-		}
-	}
-	return ex
 }
 
 func contains(s []int, x int) bool {
@@ -688,8 +670,8 @@ func defaultKind(s *Spec) DetuningKind {
 	return OnePhoton
 }
 
-// isSpin reports whether preset is a spin ladder.
-func isSpin(preset string) bool { return preset == "spin" || preset == "spin-1/2" }
+// IsSpinPreset reports whether preset is a spin ladder.
+func IsSpinPreset(preset string) bool { return preset == "spin" || preset == "spin-1/2" }
 
 func (d *decoder) kind(m map[string]any, key, path string) (DetuningKind, bool) {
 	switch v := m[key]; v {

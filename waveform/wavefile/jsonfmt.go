@@ -1,4 +1,4 @@
-package waveform
+package wavefile
 
 import (
 	"bytes"

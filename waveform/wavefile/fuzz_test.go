@@ -1,8 +1,10 @@
-package waveform
+package wavefile
 
 import (
 	"bytes"
 	"errors"
+	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/internal/wavetest"
 	"io"
 	"math"
 	"strings"
@@ -11,15 +13,15 @@ import (
 
 // smallWaveformFile returns a valid waveform file of a few samples: a Λ
 // gate at 100 MS/s.
-func smallWaveformFile(tb testing.TB, m ErrorModel) []byte {
-	hw := testHardware(2, 10e6)
+func smallWaveformFile(tb testing.TB, m waveform.ErrorModel) []byte {
+	hw := wavetest.Hardware(2, 10e6)
 	hw.SampleRate = 1e8
 	hw.Granularity = 4
-	return encode(tb, testFile(tb, lambdaPlan(math.Pi/4, 0.3, nDotSigma(math.Pi/4, 0.3)), hw, m))
+	return encode(tb, testFile(tb, wavetest.LambdaPlan(math.Pi/4, 0.3, wavetest.NDotSigma(math.Pi/4, 0.3)), hw, m))
 }
 
 func smallLoopFile(tb testing.TB) []byte {
-	lf, err := NewLoopFile(tripodPlan(math.Pi/4, 0.05), "slice", []float64{math.Pi / 4}, 6)
+	lf, err := NewLoopFile(wavetest.TripodPlan(math.Pi/4, 0.05), "slice", []float64{math.Pi / 4}, 6)
 	if err != nil {
 		tb.Fatal(err)
 	}
@@ -57,10 +59,10 @@ func seeds(f *testing.F, doc []byte) {
 // back and re-reads to the same bytes; small files also verify without
 // panicking.
 func FuzzReadWaveform(f *testing.F) {
-	seeds(f, smallWaveformFile(f, ErrorModel{}))
-	seeds(f, smallWaveformFile(f, ErrorModel{AmplitudeError: 0.1, ChannelErrors: []float64{0.01, 0.02}, Decay: 1e5, Dephasing: 1e4, RiseTime: 3e-9}))
-	seeds(f, smallWaveformFile(f, ErrorModel{Filter: FirstOrderFilter, RiseTime: 3e-9, PhaseStep: 2 * math.Pi / 64}))
-	seeds(f, smallWaveformFile(f, ErrorModel{PhaseStep: math.Pi / 8}))
+	seeds(f, smallWaveformFile(f, waveform.ErrorModel{}))
+	seeds(f, smallWaveformFile(f, waveform.ErrorModel{AmplitudeError: 0.1, ChannelErrors: []float64{0.01, 0.02}, Decay: 1e5, Dephasing: 1e4, RiseTime: 3e-9}))
+	seeds(f, smallWaveformFile(f, waveform.ErrorModel{Filter: waveform.FirstOrderFilter, RiseTime: 3e-9, PhaseStep: 2 * math.Pi / 64}))
+	seeds(f, smallWaveformFile(f, waveform.ErrorModel{PhaseStep: math.Pi / 8}))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		file := fuzzRoundTrip(t, data, ReadWaveform, (*File).WriteJSON)
 		if file == nil {
@@ -69,7 +71,7 @@ func FuzzReadWaveform(f *testing.F) {
 		// Small files must also verify without panicking (the slower
 		// density-matrix and filter paths are left to the unit tests).
 		if m := file.Verification.Model; file.Waveform.Len() <= 64 && m.Dephasing == 0 && m.RiseTime == 0 {
-			Verify(file.Waveform, m)
+			waveform.Verify(file.Waveform, m)
 		}
 	})
 }
@@ -78,7 +80,7 @@ func FuzzReadWaveform(f *testing.F) {
 // back and re-reads to the same bytes and whose shapes can be evaluated.
 func FuzzReadLoop(f *testing.F) {
 	seeds(f, smallLoopFile(f))
-	lc, _ := NewLoopFile(lambdaPlan(math.Pi/4, 0, hadamard()), "lambda", nil, 8)
+	lc, _ := NewLoopFile(wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), "lambda", nil, 8)
 	var b bytes.Buffer
 	lc.WriteJSON(&b)
 	seeds(f, b.Bytes())

@@ -1,4 +1,4 @@
-package design
+package spec
 
 import (
 	"bytes"
@@ -25,7 +25,7 @@ func mustParse(t *testing.T, src, name string) *Spec {
 }
 
 func TestDemoSpecs(t *testing.T) {
-	files, err := filepath.Glob(filepath.Join("..", "testdata", "demo-*.yaml"))
+	files, err := filepath.Glob(filepath.Join("..", "..", "testdata", "demo-*.yaml"))
 	if err != nil || len(files) != 6 {
 		t.Fatalf("want 6 demo specs, found %d (%v)", len(files), err)
 	}
@@ -68,8 +68,8 @@ func mustRead(t *testing.T, path string) []byte {
 
 // The embedded default demo is byte-identical to its testdata copy.
 func TestDemoEmbeddedMatchesTestdata(t *testing.T) {
-	if !bytes.Equal(DemoSpec(), mustRead(t, filepath.Join("..", "testdata", DemoName))) {
-		t.Fatalf("design/demo/%s and testdata/%s differ; keep them identical", DemoName, DemoName)
+	if !bytes.Equal(DemoSpec(), mustRead(t, filepath.Join("..", "..", "testdata", DemoName))) {
+		t.Fatalf("design/spec/demo/%s and testdata/%s differ; keep them identical", DemoName, DemoName)
 	}
 	if _, err := ParseSpec(DemoSpec(), DemoName); err != nil {
 		t.Fatal(err)
@@ -530,7 +530,7 @@ func TestParseDeterministic(t *testing.T) {
 	if !reflect.DeepEqual(a, b) {
 		t.Error("two parses differ")
 	}
-	bad := mustRead(t, filepath.Join("..", "testdata", "bad", "unknown-key.yaml"))
+	bad := mustRead(t, filepath.Join("..", "..", "testdata", "bad", "unknown-key.yaml"))
 	_, e1 := ParseSpec(bad, "x")
 	for range 20 {
 		if _, e2 := ParseSpec(bad, "x"); e2.Error() != e1.Error() {

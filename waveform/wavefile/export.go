@@ -1,9 +1,10 @@
-package waveform
+package wavefile
 
 import (
 	"bufio"
 	"encoding/binary"
 	"fmt"
+	"github.com/loopgate/loopgate/waveform"
 	"io"
 	"math"
 	"strconv"
@@ -14,7 +15,7 @@ import (
 // every channel <name>_i_hz, <name>_q_hz, <name>_amplitude_hz,
 // <name>_phase_rad, <name>_i_code, <name>_q_code, then <level>_detuning_hz
 // for every level with a detuning track.
-func CSVColumns(w *Waveform) []string {
+func CSVColumns(w *waveform.Waveform) []string {
 	cols := []string{"sample", "time_s"}
 	for _, ch := range w.Scheme.Channels {
 		for _, s := range []string{"_i_hz", "_q_hz", "_amplitude_hz", "_phase_rad", "_i_code", "_q_code"} {
@@ -35,7 +36,7 @@ func CSVColumns(w *Waveform) []string {
 // rad) and the codes the DAC codes. Numbers use the shortest decimal form
 // that reads back exactly. Names containing a comma, quote or line break
 // are quoted as in RFC 4180.
-func WriteCSV(out io.Writer, w *Waveform) error {
+func WriteCSV(out io.Writer, w *waveform.Waveform) error {
 	bw := bufio.NewWriter(out)
 	cols := CSVColumns(w)
 	for i, c := range cols {
@@ -90,7 +91,7 @@ func csvField(s string) string {
 // channel <name>_i_hz and <name>_q_hz (unquantised), then for every channel
 // <name>_i_code and <name>_q_code (DAC codes as float64, exact), then
 // <level>_detuning_hz for every level with a detuning track.
-func NPYColumns(w *Waveform) []string {
+func NPYColumns(w *waveform.Waveform) []string {
 	cols := []string{"time_s"}
 	for _, ch := range w.Scheme.Channels {
 		cols = append(cols, ch.Name+"_i_hz", ch.Name+"_q_hz")
@@ -111,7 +112,7 @@ func NPYColumns(w *Waveform) []string {
 // len(NPYColumns(w))), one row per sample, columns as NPYColumns. The
 // header is padded with spaces and ends in a newline so that the data
 // start at a multiple of 64 bytes.
-func WriteNPY(out io.Writer, w *Waveform) error {
+func WriteNPY(out io.Writer, w *waveform.Waveform) error {
 	cols := NPYColumns(w)
 	n, m := w.Len(), len(cols)
 	hdr := npyHeader(n, m)

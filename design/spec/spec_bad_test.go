@@ -1,4 +1,4 @@
-package design
+package spec
 
 import (
 	"errors"
@@ -96,7 +96,7 @@ func TestBadInput(t *testing.T) {
 	for _, c := range badCases {
 		listed[c.file] = true
 		t.Run(c.file, func(t *testing.T) {
-			path := filepath.Join("..", "testdata", "bad", c.file)
+			path := filepath.Join("..", "..", "testdata", "bad", c.file)
 			s, err := LoadSpec(path)
 			if err == nil {
 				t.Fatalf("accepted: %+v", s)
@@ -129,7 +129,7 @@ func TestBadInput(t *testing.T) {
 	}
 	// Every file in testdata/bad is a tested case (other readers' cases
 	// use other extensions).
-	entries, err := os.ReadDir(filepath.Join("..", "testdata", "bad"))
+	entries, err := os.ReadDir(filepath.Join("..", "..", "testdata", "bad"))
 	if err != nil {
 		t.Fatal(err)
 	}

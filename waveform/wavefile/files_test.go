@@ -1,4 +1,4 @@
-package waveform
+package wavefile
 
 import (
 	"bytes"
@@ -6,6 +6,8 @@ import (
 	"encoding/csv"
 	"encoding/json"
 	"errors"
+	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/internal/wavetest"
 	"math"
 	"reflect"
 	"strconv"
@@ -19,10 +21,10 @@ import (
 
 const testSpec = "# invented demo spec for the tests\ngate: H\nscheme: tripod\n"
 
-func testFile(t testing.TB, p *Plan, hw Hardware, m ErrorModel) *File {
+func testFile(t testing.TB, p *waveform.Plan, hw waveform.Hardware, m waveform.ErrorModel) *File {
 	t.Helper()
-	w := mustBuild(t, p, hw)
-	v := mustVerify(t, w, m)
+	w := wavetest.MustBuild(t, p, hw)
+	v := wavetest.MustVerify(t, w, m)
 	return &File{ToolVersion: "test", SpecSHA256: SpecHash([]byte(testSpec)), Seed: 1<<63 + 5, Spec: testSpec, Waveform: w, Verification: v}
 }
 
@@ -107,20 +109,20 @@ func described(schema []byte, ref string) bool {
 // Written files validate against the shipped schemas, for an adiabatic
 // and a cyclic gate and a model with every error term.
 func TestWrittenFilesValidate(t *testing.T) {
-	full := ErrorModel{AmplitudeError: 0.01, ChannelErrors: []float64{0.01, -0.02, 0}, OnePhotonDetuning: 1e5, TwoPhotonDetuning: 1e3,
+	full := waveform.ErrorModel{AmplitudeError: 0.01, ChannelErrors: []float64{0.01, -0.02, 0}, OnePhotonDetuning: 1e5, TwoPhotonDetuning: 1e3,
 		Decay: 1e4, Dephasing: 1e3, RiseTime: 2e-9, SubSteps: 4}
 	firstOrder := full
-	firstOrder.Filter, firstOrder.PhaseStep = FirstOrderFilter, math.Pi
+	firstOrder.Filter, firstOrder.PhaseStep = waveform.FirstOrderFilter, math.Pi
 	files := []*File{
-		testFile(t, tripodPlan(math.Pi/4, 0.05), testHardware(3, 10e6), ErrorModel{}),
-		testFile(t, tripodPlan(math.Pi/4, 0.05), testHardware(3, 10e6), full),
-		testFile(t, tripodPlan(math.Pi/4, 0.05), testHardware(3, 10e6), firstOrder),
-		testFile(t, lambdaPlan(math.Pi/4, 0, hadamard()), testHardware(2, 10e6), ErrorModel{}),
+		testFile(t, wavetest.TripodPlan(math.Pi/4, 0.05), wavetest.Hardware(3, 10e6), waveform.ErrorModel{}),
+		testFile(t, wavetest.TripodPlan(math.Pi/4, 0.05), wavetest.Hardware(3, 10e6), full),
+		testFile(t, wavetest.TripodPlan(math.Pi/4, 0.05), wavetest.Hardware(3, 10e6), firstOrder),
+		testFile(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6), waveform.ErrorModel{}),
 	}
 	for _, f := range files {
 		validate(t, schemas.Waveform, encode(t, f))
 	}
-	lf, err := NewLoopFile(tripodPlan(math.Pi/4, 0.05), "slice", []float64{math.Pi / 4}, 48)
+	lf, err := NewLoopFile(wavetest.TripodPlan(math.Pi/4, 0.05), "slice", []float64{math.Pi / 4}, 48)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -135,12 +137,12 @@ func TestWrittenFilesValidate(t *testing.T) {
 // verifying the waveform read from the file reproduces the recorded
 // figures exactly.
 func TestWaveformRoundTrip(t *testing.T) {
-	p := tripodPlan(math.Pi/4, 0.05)
+	p := wavetest.TripodPlan(math.Pi/4, 0.05)
 	// A controlled detuning track on e exercises level_detunings.
 	shape := p.Segments[0].Shape
 	p.Segments[0].Shape = func(s float64, pt holonomy.Point) { shape(s, pt); pt.Detuning[3] = 0.01 * math.Sin(2*math.Pi*s) }
 	p.Scheme.Levels[3].Detuning = 2 * math.Pi * 1.7e3
-	f := testFile(t, p, testHardware(3, 10e6), ErrorModel{AmplitudeError: 0.02, Decay: 1e3})
+	f := testFile(t, p, wavetest.Hardware(3, 10e6), waveform.ErrorModel{AmplitudeError: 0.02, Decay: 1e3})
 	b1 := encode(t, f)
 	g, err := ReadWaveform(bytes.NewReader(b1), "round.json")
 	if err != nil {
@@ -154,7 +156,7 @@ func TestWaveformRoundTrip(t *testing.T) {
 	if !reflect.DeepEqual(w.I, r.I) || !reflect.DeepEqual(w.Q, r.Q) || !reflect.DeepEqual(w.CodeI, r.CodeI) ||
 		!reflect.DeepEqual(w.CodeQ, r.CodeQ) || !reflect.DeepEqual(w.Detuning, r.Detuning) || !reflect.DeepEqual(w.Spans, r.Spans) ||
 		!reflect.DeepEqual(w.Hardware, r.Hardware) || !reflect.DeepEqual(w.Scheme, r.Scheme) || !reflect.DeepEqual(w.Target, r.Target) ||
-		w.Adiabaticity != r.Adiabaticity || w.MinFidelity != r.MinFidelity || !reflect.DeepEqual(w.levelHz, r.levelHz) {
+		w.Adiabaticity != r.Adiabaticity || w.MinFidelity != r.MinFidelity || !reflect.DeepEqual(w.LevelHz, r.LevelHz) {
 		t.Error("waveform differs after the round trip")
 	}
 	if g.Seed != f.Seed || g.Spec != f.Spec || g.SpecSHA256 != f.SpecSHA256 || g.ToolVersion != f.ToolVersion {
@@ -163,7 +165,7 @@ func TestWaveformRoundTrip(t *testing.T) {
 	if r.Detuning[3] == nil {
 		t.Error("detuning track lost")
 	}
-	v, err := Verify(r, g.Verification.Model)
+	v, err := waveform.Verify(r, g.Verification.Model)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -183,16 +185,16 @@ func TestWaveformRoundTrip(t *testing.T) {
 // re-verifying it reproduces the recorded figures bit for bit.
 func TestModelFilterAndPhaseStepRoundTrip(t *testing.T) {
 	for _, c := range []struct {
-		m            ErrorModel
+		m            waveform.ErrorModel
 		filter, step string
 	}{
-		{ErrorModel{}, `"filter": "none"`, `"phase_step_rad": 0,`},
-		{ErrorModel{Filter: FirstOrderFilter}, `"filter": "none"`, `"phase_step_rad": 0,`},
-		{ErrorModel{RiseTime: 2e-9, SubSteps: 4}, `"filter": "gaussian"`, `"phase_step_rad": 0,`},
-		{ErrorModel{Filter: FirstOrderFilter, RiseTime: 2e-9, PhaseStep: 2 * math.Pi / 1024, TwoPhotonDetuning: 1e4},
+		{waveform.ErrorModel{}, `"filter": "none"`, `"phase_step_rad": 0,`},
+		{waveform.ErrorModel{Filter: waveform.FirstOrderFilter}, `"filter": "none"`, `"phase_step_rad": 0,`},
+		{waveform.ErrorModel{RiseTime: 2e-9, SubSteps: 4}, `"filter": "gaussian"`, `"phase_step_rad": 0,`},
+		{waveform.ErrorModel{Filter: waveform.FirstOrderFilter, RiseTime: 2e-9, PhaseStep: 2 * math.Pi / 1024, TwoPhotonDetuning: 1e4},
 			`"filter": "first-order"`, `"phase_step_rad": 0.006135923151542565,`},
 	} {
-		f := testFile(t, lambdaPlan(math.Pi/3, 0.7, nDotSigma(math.Pi/3, 0.7)), testHardware(2, 10e6), c.m)
+		f := testFile(t, wavetest.LambdaPlan(math.Pi/3, 0.7, wavetest.NDotSigma(math.Pi/3, 0.7)), wavetest.Hardware(2, 10e6), c.m)
 		b1 := encode(t, f)
 		if !bytes.Contains(b1, []byte(c.filter)) || !bytes.Contains(b1, []byte(c.step)) {
 			t.Errorf("model %+v: file lacks %s or %s", c.m, c.filter, c.step)
@@ -205,10 +207,10 @@ func TestModelFilterAndPhaseStepRoundTrip(t *testing.T) {
 			t.Errorf("model %+v: write → read → write changed the bytes", c.m)
 		}
 		gm := g.Verification.Model
-		if gm.filterName() != c.m.filterName() || gm.RiseTime != c.m.RiseTime || gm.PhaseStep != c.m.PhaseStep || gm.SubSteps != c.m.SubSteps {
+		if gm.FilterName() != c.m.FilterName() || gm.RiseTime != c.m.RiseTime || gm.PhaseStep != c.m.PhaseStep || gm.SubSteps != c.m.SubSteps {
 			t.Errorf("model %+v read back as %+v", c.m, gm)
 		}
-		v := mustVerify(t, g.Waveform, gm)
+		v := wavetest.MustVerify(t, g.Waveform, gm)
 		if !v.Same(f.Verification) || !v.Same(g.Verification) {
 			t.Errorf("model %+v: re-verification differs (F %.17g vs %.17g)", c.m, v.Fidelity, f.Verification.Fidelity)
 		}
@@ -219,8 +221,8 @@ func TestModelFilterAndPhaseStepRoundTrip(t *testing.T) {
 // read: no filter means gaussian with a rise time and none without, no
 // phase step means 0, and the recorded figures are reproduced.
 func TestModelWithoutFilterFields(t *testing.T) {
-	for _, m := range []ErrorModel{{}, {RiseTime: 2e-9}} {
-		f := testFile(t, lambdaPlan(math.Pi/4, 0, hadamard()), testHardware(2, 10e6), m)
+	for _, m := range []waveform.ErrorModel{{}, {RiseTime: 2e-9}} {
+		f := testFile(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6), m)
 		doc := string(encode(t, f))
 		old := doc
 		for _, field := range []string{`"filter"`, `"phase_step_rad"`} {
@@ -237,14 +239,14 @@ func TestModelWithoutFilterFields(t *testing.T) {
 			t.Fatalf("rise time %g: a file without filter and phase step: %v", m.RiseTime, err)
 		}
 		gm := g.Verification.Model
-		if gm.Filter != GaussianFilter || gm.PhaseStep != 0 || gm.RiseTime != m.RiseTime {
+		if gm.Filter != waveform.GaussianFilter || gm.PhaseStep != 0 || gm.RiseTime != m.RiseTime {
 			t.Errorf("rise time %g: read %+v", m.RiseTime, gm)
 		}
-		if v := mustVerify(t, g.Waveform, gm); !v.Same(f.Verification) {
+		if v := wavetest.MustVerify(t, g.Waveform, gm); !v.Same(f.Verification) {
 			t.Errorf("rise time %g: re-verification differs", m.RiseTime)
 		}
 		// Written again, the file carries the fields.
-		if b := encode(t, g); !bytes.Contains(b, []byte(`"filter": "`+m.filterName()+`"`)) || !bytes.Contains(b, []byte(`"phase_step_rad": 0,`)) {
+		if b := encode(t, g); !bytes.Contains(b, []byte(`"filter": "`+m.FilterName()+`"`)) || !bytes.Contains(b, []byte(`"phase_step_rad": 0,`)) {
 			t.Errorf("rise time %g: rewritten file lacks filter or phase step", m.RiseTime)
 		}
 	}
@@ -252,17 +254,17 @@ func TestModelWithoutFilterFields(t *testing.T) {
 
 // Same compares the filter (when there is one) and the phase step.
 func TestSameModelFields(t *testing.T) {
-	base := Verification{Model: ErrorModel{RiseTime: 2e-9, PhaseStep: 0.01}, Adiabaticity: math.NaN()}
+	base := waveform.Verification{Model: waveform.ErrorModel{RiseTime: 2e-9, PhaseStep: 0.01}, Adiabaticity: math.NaN()}
 	for _, c := range []struct {
 		name string
-		edit func(*ErrorModel)
+		edit func(*waveform.ErrorModel)
 		same bool
 	}{
-		{"identical", func(m *ErrorModel) {}, true},
-		{"filter kind", func(m *ErrorModel) { m.Filter = FirstOrderFilter }, false},
-		{"phase step ulp", func(m *ErrorModel) { m.PhaseStep = math.Nextafter(m.PhaseStep, 1) }, false},
-		{"no phase step", func(m *ErrorModel) { m.PhaseStep = 0 }, false},
-		{"kind without rise time", func(m *ErrorModel) { m.RiseTime = 0; m.Filter = FirstOrderFilter }, false},
+		{"identical", func(m *waveform.ErrorModel) {}, true},
+		{"filter kind", func(m *waveform.ErrorModel) { m.Filter = waveform.FirstOrderFilter }, false},
+		{"phase step ulp", func(m *waveform.ErrorModel) { m.PhaseStep = math.Nextafter(m.PhaseStep, 1) }, false},
+		{"no phase step", func(m *waveform.ErrorModel) { m.PhaseStep = 0 }, false},
+		{"kind without rise time", func(m *waveform.ErrorModel) { m.RiseTime = 0; m.Filter = waveform.FirstOrderFilter }, false},
 	} {
 		o := base
 		c.edit(&o.Model)
@@ -270,8 +272,8 @@ func TestSameModelFields(t *testing.T) {
 			t.Errorf("%s: Same = %v", c.name, got)
 		}
 	}
-	a := Verification{Model: ErrorModel{Filter: FirstOrderFilter}, Adiabaticity: math.NaN()}
-	b := Verification{Model: ErrorModel{}, Adiabaticity: math.NaN()}
+	a := waveform.Verification{Model: waveform.ErrorModel{Filter: waveform.FirstOrderFilter}, Adiabaticity: math.NaN()}
+	b := waveform.Verification{Model: waveform.ErrorModel{}, Adiabaticity: math.NaN()}
 	if !a.Same(&b) {
 		t.Error("a filter kind without a rise time (filter none) is not the Same as none")
 	}
@@ -279,12 +281,12 @@ func TestSameModelFields(t *testing.T) {
 
 // A cyclic gate has no adiabaticity (NaN); Same still matches it.
 func TestSameWithoutAdiabaticity(t *testing.T) {
-	f := testFile(t, lambdaPlan(math.Pi/4, 0, hadamard()), testHardware(2, 10e6), ErrorModel{})
+	f := testFile(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6), waveform.ErrorModel{})
 	g, err := ReadWaveform(bytes.NewReader(encode(t, f)), "lambda.json")
 	if err != nil {
 		t.Fatal(err)
 	}
-	v := mustVerify(t, g.Waveform, g.Verification.Model)
+	v := wavetest.MustVerify(t, g.Waveform, g.Verification.Model)
 	if !math.IsNaN(v.Adiabaticity) || !v.Same(g.Verification) || !v.Same(f.Verification) {
 		t.Errorf("re-verification of a cyclic gate differs")
 	}
@@ -296,15 +298,15 @@ func TestSameWithoutAdiabaticity(t *testing.T) {
 
 // Same plan ⇒ byte-identical files.
 func TestDeterministic(t *testing.T) {
-	a := encode(t, testFile(t, tripodPlan(math.Pi/4, 0.05), testHardware(3, 10e6), ErrorModel{}))
-	b := encode(t, testFile(t, tripodPlan(math.Pi/4, 0.05), testHardware(3, 10e6), ErrorModel{}))
+	a := encode(t, testFile(t, wavetest.TripodPlan(math.Pi/4, 0.05), wavetest.Hardware(3, 10e6), waveform.ErrorModel{}))
+	b := encode(t, testFile(t, wavetest.TripodPlan(math.Pi/4, 0.05), wavetest.Hardware(3, 10e6), waveform.ErrorModel{}))
 	if !bytes.Equal(a, b) {
 		t.Error("two builds of the same plan differ")
 	}
 }
 
 func TestLoopFileRoundTrip(t *testing.T) {
-	p := tripodPlan(math.Pi/4, 0.05)
+	p := wavetest.TripodPlan(math.Pi/4, 0.05)
 	lf, err := NewLoopFile(p, "slice", []float64{0.25, -1e-300, 3}, 96)
 	if err != nil {
 		t.Fatal(err)
@@ -333,15 +335,15 @@ func TestLoopFileRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if d := holonomy.FrobeniusDist(res.U, rotation(math.Pi/4)); d > 1e-7 {
+	if d := holonomy.FrobeniusDist(res.U, wavetest.Rotation(math.Pi/4)); d > 1e-7 {
 		t.Errorf("holonomy of the read loop off by %g", d)
 	}
-	w := mustBuild(t, g.Plan(0.05, 0), testHardware(3, 10e6))
-	if v := mustVerify(t, w, ErrorModel{}); v.Fidelity < 0.9999 {
+	w := wavetest.MustBuild(t, g.Plan(0.05, 0), wavetest.Hardware(3, 10e6))
+	if v := wavetest.MustVerify(t, w, waveform.ErrorModel{}); v.Fidelity < 0.9999 {
 		t.Errorf("gate from the loop file: F = %.8f", v.Fidelity)
 	}
 	// A cyclic segment is one point with its area.
-	lc, err := NewLoopFile(lambdaPlan(math.Pi/4, 0, hadamard()), "lambda", nil, 8)
+	lc, err := NewLoopFile(wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), "lambda", nil, 8)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -353,7 +355,7 @@ func TestLoopFileRoundTrip(t *testing.T) {
 // The NPY header decodes as NumPy format 1.0 with the documented shape,
 // the data start on a 64-byte boundary and the values read back exactly.
 func TestNPY(t *testing.T) {
-	w := mustBuild(t, lambdaPlan(math.Pi/4, 0, hadamard()), testHardware(2, 10e6))
+	w := wavetest.MustBuild(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6))
 	var b bytes.Buffer
 	if err := WriteNPY(&b, w); err != nil {
 		t.Fatal(err)
@@ -392,7 +394,7 @@ func TestNPY(t *testing.T) {
 // The CSV parses with encoding/csv, has the documented header and one row
 // per sample, and its numbers read back exactly.
 func TestCSV(t *testing.T) {
-	w := mustBuild(t, lambdaPlan(math.Pi/4, 0.3, nDotSigma(math.Pi/4, 0.3)), testHardware(2, 10e6))
+	w := wavetest.MustBuild(t, wavetest.LambdaPlan(math.Pi/4, 0.3, wavetest.NDotSigma(math.Pi/4, 0.3)), wavetest.Hardware(2, 10e6))
 	var b bytes.Buffer
 	if err := WriteCSV(&b, w); err != nil {
 		t.Fatal(err)
@@ -418,8 +420,8 @@ func TestCSV(t *testing.T) {
 // Bad waveform files: each gets a *FileError naming the file and the
 // offending place.
 func TestReadWaveformErrors(t *testing.T) {
-	good := string(encode(t, testFile(t, lambdaPlan(math.Pi/4, 0, hadamard()), testHardware(2, 10e6), ErrorModel{})))
-	f := testFile(t, lambdaPlan(math.Pi/4, 0, hadamard()), testHardware(2, 10e6), ErrorModel{})
+	good := string(encode(t, testFile(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6), waveform.ErrorModel{})))
+	f := testFile(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6), waveform.ErrorModel{})
 	f.Waveform.I[1] = f.Waveform.I[1][:10]
 	short := string(encode(t, f))
 	cases := []struct{ name, doc, ptr, msg string }{
@@ -481,7 +483,7 @@ func editCode(doc string) string {
 }
 
 func TestReadLoopErrors(t *testing.T) {
-	lf, err := NewLoopFile(tripodPlan(math.Pi/4, 0.05), "slice", nil, 8)
+	lf, err := NewLoopFile(wavetest.TripodPlan(math.Pi/4, 0.05), "slice", nil, 8)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -1,4 +1,4 @@
-package design
+package spec
 
 import (
 	"embed"
@@ -53,3 +53,10 @@ func StarterSpec(preset string) ([]byte, error) {
 	}
 	return nil, fmt.Errorf("no starter spec for %q; choose one of %s", preset, strings.Join(StarterPresets(), ", "))
 }
+
+// DemoSpecName names the built-in demo spec in messages; it is a copy of
+// the file with the same name under testdata/.
+const DemoSpecName = "demo-tripod-hadamard.yaml (built in)"
+
+// LoadDemoSpec parses the built-in demo spec.
+func LoadDemoSpec() (*Spec, error) { return ParseSpec(DemoSpec(), DemoSpecName) }

@@ -1,13 +1,13 @@
-package design_test
+package spec_test
 
 import (
 	"fmt"
 
-	"github.com/loopgate/loopgate/design"
+	"github.com/loopgate/loopgate/design/spec"
 )
 
 func ExampleLookupGate() {
-	g, ok := design.LookupGate("√X")
+	g, ok := spec.LookupGate("√X")
 	fmt.Println(ok, g.Name, g.Symbol, "-", g.Title)
 	fmt.Print(g.Matrix())
 	// Output:
@@ -17,7 +17,7 @@ func ExampleLookupGate() {
 }
 
 func ExampleGates() {
-	for _, g := range design.Gates()[:5] {
+	for _, g := range spec.Gates()[:5] {
 		fmt.Printf("%-4s %s\n", g.Name, g.Title)
 	}
 	// Output:

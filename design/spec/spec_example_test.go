@@ -1,9 +1,9 @@
-package design_test
+package spec_test
 
 import (
 	"fmt"
 
-	"github.com/loopgate/loopgate/design"
+	"github.com/loopgate/loopgate/design/spec"
 )
 
 func ExampleParseSpec() {
@@ -22,13 +22,13 @@ hardware:
   min_duration: "200 ns"
   max_duration: "5 us"
 `
-	s, err := design.ParseSpec([]byte(src), "example.yaml")
+	s, err := spec.ParseSpec([]byte(src), "example.yaml")
 	if err != nil {
 		fmt.Println(err)
 		return
 	}
 	fmt.Println(s.Target.Label, "by", s.Method, "holonomy on the", s.Scheme.Name)
-	fmt.Println("max Rabi frequency (Ω/2π):", design.FormatQuantity(s.Hardware.MaxRabi[0], design.Frequency))
+	fmt.Println("max Rabi frequency (Ω/2π):", spec.FormatQuantity(s.Hardware.MaxRabi[0], spec.Frequency))
 	fmt.Printf("decay of e: Γ = %.4g /s\n", s.Scheme.Levels[3].Decay)
 	fmt.Println("restarts (default):", s.Search.Restarts)
 	// Output:
@@ -54,7 +54,7 @@ hardware:
   max_duration: "5 us"
   colour: blue
 `
-	_, err := design.ParseSpec([]byte(src), "demo.yaml")
+	_, err := spec.ParseSpec([]byte(src), "demo.yaml")
 	fmt.Println(err)
 	// Output:
 	// spec demo.yaml: hardware.sample_rate (line 8, col 16): "1.2 GHz" is not a sample rate (GHz is a unit of frequency); accepted units: S/s, kS/s, MS/s, GS/s
@@ -62,8 +62,8 @@ hardware:
 }
 
 func ExampleStarterSpec() {
-	b, _ := design.StarterSpec("lambda")
-	s, err := design.ParseSpec(b, "starter.yaml")
+	b, _ := spec.StarterSpec("lambda")
+	s, err := spec.ParseSpec(b, "starter.yaml")
 	fmt.Println(err == nil, s.Scheme.Name, s.Method)
 	// Output:
 	// true lambda nonadiabatic

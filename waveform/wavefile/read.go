@@ -1,10 +1,11 @@
-package waveform
+package wavefile
 
 import (
 	"bytes"
 	"encoding/json"
 	"errors"
 	"fmt"
+	"github.com/loopgate/loopgate/waveform"
 	"io"
 	"math"
 	"sort"
@@ -247,7 +248,7 @@ func parseScheme(name, ptr string, d *schemeDoc) (*holonomy.Scheme, []float64, e
 		}
 		s.Computational = append(s.Computational, k)
 	}
-	s = schemeFromHz(s, hz)
+	s = waveform.SchemeFromHz(s, hz)
 	if err := s.Validate(); err != nil {
 		return nil, nil, ferr(name, ptr, "%v", err)
 	}
@@ -287,7 +288,7 @@ func (d *waveDoc) file(name string) (*File, error) {
 		return nil, err
 	}
 	h := d.Hardware
-	hw := Hardware{
+	hw := waveform.Hardware{
 		MaxRabi: h.MaxRabi, MaxSlew: h.MaxSlew, SampleRate: d.SampleRate, Granularity: h.Granularity,
 		MaxSamples: h.MaxSamples, DACBits: h.DACBits, FullScale: h.FullScale, MinDuration: h.MinDuration, MaxDuration: h.MaxDuration,
 	}
@@ -301,14 +302,14 @@ func (d *waveDoc) file(name string) (*File, error) {
 	if len(d.Channels) != nch {
 		return nil, ferr(name, "/channels", "%d channels of samples for %d channels in the scheme", len(d.Channels), nch)
 	}
-	w := &Waveform{
-		Scheme: sc, Target: target, Hardware: hw, levelHz: hz,
+	w := &waveform.Waveform{
+		Scheme: sc, Target: target, Hardware: hw, LevelHz: hz,
 		Adiabaticity: d.Goals.Adiabaticity, MinFidelity: d.Goals.MinFidelity,
 		I: make([][]float64, nch), Q: make([][]float64, nch),
 		CodeI: make([][]int32, nch), CodeQ: make([][]int32, nch),
 		Detuning: make([][]float64, nlev),
 	}
-	mc := hw.maxCode()
+	mc := hw.MaxCode()
 	for c, ch := range d.Channels {
 		p := fmt.Sprintf("/channels/%d", c)
 		if ch.Name != sc.Channels[c].Name {
@@ -329,7 +330,7 @@ func (d *waveDoc) file(name string) (*File, error) {
 				v    float64
 				code int32
 			}{{"i_code", ch.I[k], ch.CodeI[k]}, {"q_code", ch.Q[k], ch.CodeQ[k]}} {
-				want, err := dacCode(x.v, fs, mc)
+				want, err := waveform.DACCode(x.v, fs, mc)
 				if err != nil || want != x.code {
 					return nil, ferr(name, fmt.Sprintf("%s/%s/%d", p, x.key, k), "DAC code %d does not match the sample: round(x/full_scale × %g) = %d", x.code, mc, want)
 				}
@@ -354,7 +355,7 @@ func (d *waveDoc) file(name string) (*File, error) {
 	at := 0
 	for i, s := range d.Segments {
 		p := fmt.Sprintf("/segments/%d", i)
-		kind, err := parseKind(s.Kind)
+		kind, err := waveform.ParseKind(s.Kind)
 		if err != nil {
 			return nil, ferr(name, p+"/kind", "%v", err)
 		}
@@ -364,13 +365,13 @@ func (d *waveDoc) file(name string) (*File, error) {
 		if s.Samples > n-at {
 			return nil, ferr(name, p+"/samples", "segment of %d samples from sample %d runs past the end (%d samples)", s.Samples, at, n)
 		}
-		if kind == Adiabatic && (s.Ramp < 1 || 2*s.Ramp >= s.Samples) {
+		if kind == waveform.Adiabatic && (s.Ramp < 1 || 2*s.Ramp >= s.Samples) {
 			return nil, ferr(name, p+"/ramp_samples", "adiabatic segment of %d samples needs ramps of at least 1 and less than half of it each, has %d", s.Samples, s.Ramp)
 		}
-		if kind == Cyclic && s.Ramp != 0 {
+		if kind == waveform.Cyclic && s.Ramp != 0 {
 			return nil, ferr(name, p+"/ramp_samples", "cyclic segments have no ramps")
 		}
-		w.Spans = append(w.Spans, Span{Kind: kind, First: s.First, Len: s.Samples, Ramp: s.Ramp, Area: s.Area, Amplitude: s.Amplitude, MinGap: s.MinGap})
+		w.Spans = append(w.Spans, waveform.Span{Kind: kind, First: s.First, Len: s.Samples, Ramp: s.Ramp, Area: s.Area, Amplitude: s.Amplitude, MinGap: s.MinGap})
 		at += s.Samples
 	}
 	for c := range w.I {
@@ -388,7 +389,7 @@ func (d *waveDoc) file(name string) (*File, error) {
 }
 
 // parse checks the verification document.
-func (d *verificationDoc) parse(name string, nq, nch int) (*Verification, error) {
+func (d *verificationDoc) parse(name string, nq, nch int) (*waveform.Verification, error) {
 	p := "/verification"
 	if len(d.PeakAux) != nq || len(d.PeakExcited) != nq {
 		return nil, ferr(name, p+"/peak_aux_population", "%d and %d peak populations for %d qubit levels", len(d.PeakAux), len(d.PeakExcited), nq)
@@ -404,8 +405,8 @@ func (d *verificationDoc) parse(name string, nq, nch int) (*Verification, error)
 	if !(m.PhaseStep >= 0 && m.PhaseStep <= math.Pi) {
 		return nil, ferr(name, p+"/model/phase_step_rad", "phase step %g rad; need 0 (exact phases) to π", m.PhaseStep)
 	}
-	v := &Verification{
-		Model: ErrorModel{
+	v := &waveform.Verification{
+		Model: waveform.ErrorModel{
 			AmplitudeError: m.AmplitudeError, OnePhotonDetuning: m.OnePhotonDetuning, TwoPhotonDetuning: m.TwoPhotonDetuning,
 			Decay: m.Decay, Dephasing: m.Dephasing, RiseTime: m.RiseTime, Filter: filter, SubSteps: m.SubSteps,
 			PhaseStep: m.PhaseStep, Unquantized: !m.Quantized,
@@ -421,7 +422,7 @@ func (d *verificationDoc) parse(name string, nq, nch int) (*Verification, error)
 	}
 	for i, c := range d.Checks {
 		lower := c.Bound == "min"
-		want := newCheck(c.Name, c.Value, c.Limit, c.Unit, lower)
+		want := waveform.NewCheck(c.Name, c.Value, c.Limit, c.Unit, lower)
 		if want.Margin != c.Margin || want.Pass != c.Pass {
 			return nil, ferr(name, fmt.Sprintf("%s/checks/%d", p, i), "check %q: margin %g and pass %v do not follow from value %g and limit %g", c.Name, c.Margin, c.Pass, c.Value, c.Limit)
 		}
@@ -437,22 +438,22 @@ func (d *verificationDoc) parse(name string, nq, nch int) (*Verification, error)
 // time and returns the filter kind. An absent filter (a file written
 // before the field existed) means gaussian with a rise time, none
 // without.
-func parseFilter(name, ptr string, m *modelDoc) (FilterKind, error) {
+func parseFilter(name, ptr string, m *modelDoc) (waveform.FilterKind, error) {
 	switch m.Filter {
 	case "":
-		return GaussianFilter, nil
+		return waveform.GaussianFilter, nil
 	case "none":
 		if m.RiseTime != 0 {
 			return 0, ferr(name, ptr+"/filter", "filter is none but rise_time_s is %g s; give gaussian or first-order, or a rise time of 0", m.RiseTime)
 		}
-		return GaussianFilter, nil
+		return waveform.GaussianFilter, nil
 	}
-	var k FilterKind
+	var k waveform.FilterKind
 	switch m.Filter {
-	case GaussianFilter.String():
-		k = GaussianFilter
-	case FirstOrderFilter.String():
-		k = FirstOrderFilter
+	case waveform.GaussianFilter.String():
+		k = waveform.GaussianFilter
+	case waveform.FirstOrderFilter.String():
+		k = waveform.FirstOrderFilter
 	default:
 		return 0, ferr(name, ptr+"/filter", "filter %q; expected none, gaussian or first-order", m.Filter)
 	}

@@ -1,8 +1,9 @@
-package waveform
+package wavefile
 
 import (
 	"errors"
 	"fmt"
+	"github.com/loopgate/loopgate/waveform"
 	"io"
 
 	"github.com/loopgate/loopgate/holonomy"
@@ -35,7 +36,7 @@ type LoopFile struct {
 // LoopSegment is one segment of a loop file.
 type LoopSegment struct {
 	// Kind is the segment's kind.
-	Kind Kind
+	Kind waveform.Kind
 	// Area is the pulse area (rad) of a cyclic segment.
 	Area float64
 	// S holds the loop parameters of the points: S[0] = 0, strictly
@@ -52,14 +53,14 @@ const MaxLoopPoints = 65536
 // NewLoopFile samples the segments of p: an adiabatic shape at n points
 // s = j/n, j = 0 … n−1 (n from 4 to MaxLoopPoints), a cyclic segment at
 // s = 0 only. family and params are recorded as given.
-func NewLoopFile(p *Plan, family string, params []float64, n int) (*LoopFile, error) {
-	if err := p.validate(); err != nil {
+func NewLoopFile(p *waveform.Plan, family string, params []float64, n int) (*LoopFile, error) {
+	if err := p.Validate(); err != nil {
 		return nil, err
 	}
 	if n < 4 || n > MaxLoopPoints {
 		return nil, fmt.Errorf("loop file: %d points per loop; need 4 to %d", n, MaxLoopPoints)
 	}
-	sc, hz := canonScheme(p.Scheme)
+	sc, hz := waveform.CanonScheme(p.Scheme)
 	lf := &LoopFile{
 		Scheme: sc, Target: p.Target.Clone(), Family: family,
 		Parameters: append([]float64(nil), params...), levelHz: hz,
@@ -67,7 +68,7 @@ func NewLoopFile(p *Plan, family string, params []float64, n int) (*LoopFile, er
 	for i, seg := range p.Segments {
 		ls := LoopSegment{Kind: seg.Kind, Area: 0}
 		m := n
-		if seg.Kind == Cyclic {
+		if seg.Kind == waveform.Cyclic {
 			m = 1
 			ls.Area = seg.Area
 		}
@@ -131,10 +132,10 @@ func copyPoint(dst, src holonomy.Point) {
 
 // Plan returns a plan whose segments follow the loop file's points (see
 // Shape), with the given goals (zero for the defaults).
-func (l *LoopFile) Plan(adiabaticity, minFidelity float64) *Plan {
-	p := &Plan{Scheme: l.Scheme, Target: l.Target, Adiabaticity: adiabaticity, MinFidelity: minFidelity}
+func (l *LoopFile) Plan(adiabaticity, minFidelity float64) *waveform.Plan {
+	p := &waveform.Plan{Scheme: l.Scheme, Target: l.Target, Adiabaticity: adiabaticity, MinFidelity: minFidelity}
 	for i, s := range l.Segments {
-		p.Segments = append(p.Segments, Segment{Kind: s.Kind, Shape: l.Shape(i), Area: s.Area})
+		p.Segments = append(p.Segments, waveform.Segment{Kind: s.Kind, Shape: l.Shape(i), Area: s.Area})
 	}
 	return p
 }
@@ -173,7 +174,7 @@ func (l *LoopFile) WriteJSON(w io.Writer) error {
 	}
 	hz := l.levelHz
 	if hz == nil {
-		_, hz = canonScheme(l.Scheme)
+		_, hz = waveform.CanonScheme(l.Scheme)
 	}
 	d := loopDoc{
 		Format: LoopFormat, Version: FormatVersion,
@@ -234,12 +235,12 @@ func ReadLoop(r io.Reader, name string) (*LoopFile, error) {
 	nch, nlev := len(sc.Channels), sc.Dim()
 	for i, s := range d.Segments {
 		p := fmt.Sprintf("/segments/%d", i)
-		kind, err := parseKind(s.Kind)
+		kind, err := waveform.ParseKind(s.Kind)
 		if err != nil {
 			return nil, ferr(name, p+"/kind", "%v", err)
 		}
 		ls := LoopSegment{Kind: kind, Area: s.Area}
-		if kind == Cyclic {
+		if kind == waveform.Cyclic {
 			if len(s.Points) != 1 {
 				return nil, ferr(name, p+"/points", "a cyclic segment has exactly one point, not %d", len(s.Points))
 			}

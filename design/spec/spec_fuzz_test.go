@@ -1,4 +1,4 @@
-package design
+package spec
 
 import (
 	"errors"
@@ -17,7 +17,7 @@ import (
 // the starters and every bad-input file.
 func FuzzParseSpec(f *testing.F) {
 	var seeds []string
-	for _, pat := range []string{"../testdata/*.yaml", "../testdata/bad/*.yaml", "starter/*.yaml"} {
+	for _, pat := range []string{"../../testdata/*.yaml", "../../testdata/bad/*.yaml", "starter/*.yaml"} {
 		m, _ := filepath.Glob(pat)
 		seeds = append(seeds, m...)
 	}

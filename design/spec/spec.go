@@ -1,4 +1,4 @@
-package design
+package spec
 
 import (
 	"crypto/sha256"

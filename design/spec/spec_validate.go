@@ -1,4 +1,4 @@
-package design
+package spec
 
 import (
 	"fmt"
@@ -40,8 +40,6 @@ func formatBytes(b float64) string {
 	return fmt.Sprintf("%.0f bytes", b)
 }
 
-func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
-
 // checker collects problems of a resolved Spec.
 type checker struct{ probs []Problem }
 
@@ -51,7 +49,7 @@ func (c *checker) bad(path, format string, args ...any) {
 
 // positive checks x > 0 and finite.
 func (c *checker) positive(path string, x float64, dim Dimension) bool {
-	if !finite(x) || x <= 0 {
+	if !holonomy.Finite(x) || x <= 0 {
 		c.bad(path, "must be positive; found %s", showValue(x, dim))
 		return false
 	}
@@ -65,7 +63,7 @@ func (c *checker) intRange(path string, x, lo, hi int, what string) {
 }
 
 func showValue(x float64, dim Dimension) string {
-	if !finite(x) {
+	if !holonomy.Finite(x) {
 		return fmt.Sprint(x)
 	}
 	switch dim {
@@ -149,10 +147,10 @@ func (s *Spec) checkScheme(c *checker) bool {
 			c.bad(fmt.Sprintf("scheme.levels[%d].name", k), "level name %q is used twice (also scheme.levels[%d])", l.Name, j)
 		}
 		seen[l.Name] = k
-		if !finite(l.Detuning) {
+		if !holonomy.Finite(l.Detuning) {
 			c.bad(s.levelPath(k, "detuning"), "must be finite; found %v", l.Detuning)
 		}
-		if !finite(l.Decay) || l.Decay < 0 {
+		if !holonomy.Finite(l.Decay) || l.Decay < 0 {
 			c.bad(s.levelPath(k, "decay"), "a decay rate must be zero or positive; found %s", showValue(l.Decay, Rate))
 		}
 	}
@@ -189,7 +187,7 @@ func (s *Spec) checkScheme(c *checker) bool {
 				pairs[key] = i
 			}
 		}
-		if !finite(ch.Factor) || ch.Factor == 0 {
+		if !holonomy.Finite(ch.Factor) || ch.Factor == 0 {
 			c.bad(p+".factor", "the matrix-element factor must be finite and non-zero; found %v", ch.Factor)
 		}
 	}
@@ -250,12 +248,12 @@ func (s *Spec) checkWorkingSubspace(c *checker) {
 			sc.Levels[q0].Name, sc.Levels[q1].Name)
 		return
 	}
-	if isSpin(s.Preset) {
+	if IsSpinPreset(s.Preset) {
 		return
 	}
 	rabi := math.Inf(1)
 	for _, r := range s.Hardware.MaxRabi {
-		if r > 0 && finite(r) {
+		if r > 0 && holonomy.Finite(r) {
 			rabi = math.Min(rabi, r)
 		}
 	}
@@ -409,14 +407,14 @@ func (s *Spec) checkSearch(c *checker) {
 	if r.Seed > MaxSeed {
 		c.bad("search.seed", "a seed is a whole number from 0 to %d; found %d", uint64(MaxSeed), r.Seed)
 	}
-	if !finite(r.TargetInfidelity) || r.TargetInfidelity <= 0 || r.TargetInfidelity >= 1 {
+	if !holonomy.Finite(r.TargetInfidelity) || r.TargetInfidelity <= 0 || r.TargetInfidelity >= 1 {
 		c.bad("search.target_infidelity", "must be above 0 and below 1; found %v", r.TargetInfidelity)
 	}
 	e := r.Robust
-	if !finite(e.Amplitude) || e.Amplitude < 0 || e.Amplitude >= 1 {
+	if !holonomy.Finite(e.Amplitude) || e.Amplitude < 0 || e.Amplitude >= 1 {
 		c.bad("search.robust.amplitude", "must be from 0 to below 1; found %v", e.Amplitude)
 	}
-	if !finite(e.Detuning) || e.Detuning < 0 {
+	if !holonomy.Finite(e.Detuning) || e.Detuning < 0 {
 		c.bad("search.robust.detuning", "must be zero or positive; found %s", showValue(e.Detuning, Frequency))
 	}
 	if e.Detuning != 0 {
@@ -442,20 +440,20 @@ func (s *Spec) checkErrors(c *checker, nch int) {
 		c.bad("errors.amplitude", "has %d values for %d channels", len(e.Amplitude), nch)
 	} else {
 		for i, a := range e.Amplitude {
-			if !finite(a) || a <= -1 || a >= 1 {
+			if !holonomy.Finite(a) || a <= -1 || a >= 1 {
 				c.bad(s.chanPath("errors.amplitude", i), "an amplitude error must be above −1 and below 1; found %v", a)
 			}
 		}
 	}
-	if !finite(e.OnePhoton) {
+	if !holonomy.Finite(e.OnePhoton) {
 		c.bad("errors.one_photon_detuning", "must be finite")
 	} else if e.OnePhoton != 0 {
 		s.checkKind(c, "errors.one_photon_detuning", OnePhoton)
 	}
-	if !finite(e.TwoPhoton) {
+	if !holonomy.Finite(e.TwoPhoton) {
 		c.bad("errors.two_photon_detuning", "must be finite")
 	}
-	if !finite(e.Dephasing) || e.Dephasing < 0 {
+	if !holonomy.Finite(e.Dephasing) || e.Dephasing < 0 {
 		c.bad("errors.dephasing", "a dephasing rate must be zero or positive; found %s", showValue(e.Dephasing, Rate))
 	}
 	switch e.Filter {
@@ -464,20 +462,20 @@ func (s *Spec) checkErrors(c *checker, nch int) {
 			c.bad("errors.rise_time", "a rise time is given but no filter; set filter: gaussian or first-order")
 		}
 	case GaussianFilter, FirstOrderFilter:
-		if !finite(e.RiseTime) || e.RiseTime <= 0 {
+		if !holonomy.Finite(e.RiseTime) || e.RiseTime <= 0 {
 			c.bad("errors.rise_time", "the %s filter needs a positive rise time; found %s", e.Filter, showValue(e.RiseTime, Time))
 		}
 	default:
 		c.bad("errors.filter", "expected none, gaussian or first-order")
 	}
-	if !finite(e.PhaseStep) || e.PhaseStep < 0 || e.PhaseStep > math.Pi {
+	if !holonomy.Finite(e.PhaseStep) || e.PhaseStep < 0 || e.PhaseStep > math.Pi {
 		c.bad("errors.phase_step", "must be from 0 to 180 deg; found %s", showValue(e.PhaseStep, Angle))
 	}
 }
 
 func (s *Spec) checkSweeps(c *checker) {
 	w := &s.Sweeps
-	if a := w.Amplitude.Span; !finite(a) || a <= 0 || a >= 1 {
+	if a := w.Amplitude.Span; !holonomy.Finite(a) || a <= 0 || a >= 1 {
 		c.bad("sweeps.amplitude.span", "must be above 0 and below 1; found %v", a)
 	}
 	c.intRange("sweeps.amplitude.points", w.Amplitude.Points, 2, MaxSweepPoints, "the number of sweep points")
