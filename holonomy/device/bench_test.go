@@ -53,3 +53,27 @@ func BenchmarkSimulateTransmonCrosstalkChannel(b *testing.B) {
 		}
 	}
 }
+
+// The simulator's hot loops allocate nothing once its workspaces exist.
+func TestSimulatorAllocs(t *testing.T) {
+	m, pts, dt, _ := transmonGate(t)
+	d := m.Device()
+	d.Levels = append([]Level(nil), d.Levels...)
+	d.Levels[2].Decay = 1e5
+	d.Levels[2].Branches = []Branch{{To: 1, Fraction: 1}}
+	lossy := compile(t, &d)
+	sim, lsim := NewSimulator(m), NewSimulator(lossy)
+	u, s, rho := holonomy.Identity(4), holonomy.Identity(16), holonomy.Identity(4)
+	pts = pts[:8]
+	for name, f := range map[string]func(){
+		"Propagate": func() { _ = sim.Propagate(u, pts, dt) },
+		"Channel":   func() { _ = lsim.Channel(s, pts, dt) },
+		"Evolve":    func() { _ = lsim.Evolve(rho, pts, dt) },
+		"Substeps":  func() { _, _ = sim.Substeps(pts, dt) },
+	} {
+		f() // create the workspaces
+		if a := testing.AllocsPerRun(5, f); a != 0 {
+			t.Errorf("%s: %g allocations per run", name, a)
+		}
+	}
+}

@@ -198,7 +198,7 @@ func (s *Simulator) count(samples []holonomy.Point, dt float64, dissipative bool
 		nu := s.rate(p, dissipative)
 		steps := s.substeps(nu, dt, kappa)
 		if steps > float64(limit) {
-			return 0, &StepLimitError{Needed: int64(math.Min(steps*float64(len(samples)), math.MaxInt64/2)), Limit: limit,
+			return 0, &StepLimitError{Needed: int64(math.Min(steps+float64(len(samples)-1), math.MaxInt64/2)), Limit: limit,
 				Sample: j, SampleSteps: int64(math.Min(steps, math.MaxInt64/2)), Rate: nu, Dt: dt, StepPhase: kappa}
 		}
 		c := int64(steps)
