@@ -77,3 +77,26 @@ func TestSimulatorAllocs(t *testing.T) {
 		}
 	}
 }
+
+// BenchmarkSimulateTransmonCrosstalkNoisyFidelity is the gate fidelity of
+// the same gate with T1 decay down the ladder and dephasing, evolving only
+// the four computational operators through the Lindblad equation.
+func BenchmarkSimulateTransmonCrosstalkNoisyFidelity(b *testing.B) {
+	m, pts, dt, _ := transmonGate(b)
+	d := m.Device()
+	d.Levels = append([]Level(nil), d.Levels...)
+	for k := 1; k < 4; k++ {
+		d.Levels[k].Decay = float64(k) / 60e-6
+		d.Levels[k].Branches = []Branch{{To: k - 1, Fraction: 1}}
+		d.Levels[k].Dephasing = 1 / 80e-6
+	}
+	sim := NewSimulator(compile(b, &d))
+	target := holonomy.NewMatFrom(2, 2, []complex128{0, 1, 1, 0})
+	b.ReportAllocs()
+	b.ResetTimer()
+	for range b.N {
+		if _, _, err := sim.GateFidelity(pts, dt, target); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

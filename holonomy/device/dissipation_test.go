@@ -144,3 +144,37 @@ func TestEveryDeclaredRateCounts(t *testing.T) {
 		}
 	}
 }
+
+// GateFidelity evolving only the computational operators equals the
+// fidelity of the full channel (holonomy.ChannelFidelity of Channel), and
+// for a model without dissipation the propagator's holonomy.GateFidelity.
+func TestGateFidelityPaths(t *testing.T) {
+	m, pts, dt, _ := transmonGate(t)
+	pts = pts[:40]
+	target := holonomy.NewMatFrom(2, 2, []complex128{0, 1, 1, 0})
+	u := holonomy.Identity(4)
+	sim := NewSimulator(m)
+	if err := sim.Propagate(u, pts, dt); err != nil {
+		t.Fatal(err)
+	}
+	wf, wl := holonomy.GateFidelity(u, m.Device().Computational, target)
+	f, l, err := sim.GateFidelity(pts, dt, target)
+	if err != nil || f != wf || l != wl {
+		t.Errorf("pure path: %g, %g (%v), want %g, %g", f, l, err, wf, wl)
+	}
+	d := m.Device()
+	d.Levels = append([]Level(nil), d.Levels...)
+	d.Levels[1].Decay, d.Levels[1].Branches = 2e5, []Branch{{To: 0, Fraction: 1}}
+	d.Levels[2].Dephasing = 3e5
+	lm := compile(t, &d)
+	ls := NewSimulator(lm)
+	sup := holonomy.Identity(16)
+	if err := ls.Channel(sup, pts, dt); err != nil {
+		t.Fatal(err)
+	}
+	wf, wl = holonomy.ChannelFidelity(sup, 4, d.Computational, target)
+	f, l, err = ls.GateFidelity(pts, dt, target)
+	if err != nil || math.Abs(f-wf) > 1e-13 || math.Abs(l-wl) > 1e-13 {
+		t.Errorf("Lindblad path: %.15g, %.15g (%v), want %.15g, %.15g", f, l, err, wf, wl)
+	}
+}

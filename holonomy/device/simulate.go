@@ -97,6 +97,8 @@ type Simulator struct {
 	x1, x2 *holonomy.Mat
 	rowAmp []float64
 	lossy  bool
+
+	fidU, fidS, fidOp *holonomy.Mat // GateFidelity workspaces
 }
 
 // NewSimulator returns a simulation workspace for m.
