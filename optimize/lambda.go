@@ -201,7 +201,7 @@ func (e *lambdaEval) gate(segs []Segment) (infid, leak float64) {
 	for _, v := range e.blk.Data {
 		norm += real(v)*real(v) + imag(v)*imag(v)
 	}
-	return Infidelity(e.blk, e.target), math.Max(0, 1-norm/2)
+	return holonomy.BlockInfidelity(e.blk, e.target), math.Max(0, 1-norm/2)
 }
 
 // LambdaClosedForm returns the segments that make the 2×2 unitary target

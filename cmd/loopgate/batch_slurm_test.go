@@ -86,6 +86,9 @@ func files(t *testing.T, dir string, subs ...string) map[string][]byte {
 // byte for byte; that a task cancelled with scancel mid-run is finished
 // by a rerun; and that a bad row is refused at plan time.
 func TestSlurmArray(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs designs; skipped with -short")
+	}
 	needSlurm(t)
 	exe, err := os.Executable()
 	if err != nil {

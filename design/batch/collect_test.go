@@ -15,6 +15,9 @@ import (
 // TestCollectSummary runs the demo (4 sites × H) and checks the summary
 // against the task files and against physics.
 func TestCollectSummary(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs designs; skipped with -short")
+	}
 	work := planDemo(t, "H")
 	if _, err := Run(context.Background(), RunOptions{Work: work, Jobs: 2, ArrayIndex: -1}); err != nil {
 		t.Fatal(err)

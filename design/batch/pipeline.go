@@ -14,6 +14,7 @@ import (
 	"path/filepath"
 
 	"github.com/loopgate/loopgate/design"
+	"github.com/loopgate/loopgate/design/spec"
 )
 
 // ToolVersion is the loopgate version recorded in the plan and summary.
@@ -23,7 +24,7 @@ const ToolVersion = design.Version
 const caution = design.Caution
 
 // maxSpecBytes bounds the base spec read by Plan.
-const maxSpecBytes = design.MaxSpecBytes
+const maxSpecBytes = spec.MaxSpecBytes
 
 // specProblem is one problem the spec parser found: the spec field (as
 // "hardware.max_rabi"; empty for the whole spec) and what is wrong.
@@ -34,7 +35,7 @@ type specProblem struct {
 
 // taskSpec is a parsed, validated task spec.
 type taskSpec struct {
-	spec *design.Spec
+	parsed *spec.Spec
 	// Gate is the canonical name of the target gate ("" for a rotation
 	// or an explicit unitary).
 	Gate string
@@ -44,11 +45,11 @@ type taskSpec struct {
 // and in the outputs (as the spec's source). A spec error is returned as
 // its problems, each naming the spec field; any other error as err.
 func parseSpec(data []byte, name string) (*taskSpec, []specProblem, error) {
-	s, err := design.ParseSpec(data, name)
+	s, err := spec.ParseSpec(data, name)
 	if err == nil {
-		return &taskSpec{spec: s, Gate: s.Target.Name}, nil, nil
+		return &taskSpec{parsed: s, Gate: s.Target.Name}, nil, nil
 	}
-	var se *design.SpecError
+	var se *spec.SpecError
 	if !errors.As(err, &se) {
 		return nil, nil, err
 	}
@@ -65,7 +66,7 @@ func parseSpec(data []byte, name string) (*taskSpec, []specProblem, error) {
 // back with Pass false and a nil error. Any other error means no usable
 // output.
 func designInto(ctx context.Context, ts *taskSpec, dir string) (*TaskResult, error) {
-	out, err := design.Design(ctx, ts.spec, design.Options{OutDir: dir})
+	out, err := design.Design(ctx, ts.parsed, design.Options{OutDir: dir})
 	var chk *design.ChecksFailedError
 	if err != nil && !(errors.As(err, &chk) && out != nil) {
 		return nil, err

@@ -148,7 +148,7 @@ func TestOverrides(t *testing.T) {
 		if err != nil || len(probs) > 0 {
 			t.Fatalf("%s: %v %v", task.ID, err, probs)
 		}
-		s, w := ts.spec, want[task.Qubit]
+		s, w := ts.parsed, want[task.Qubit]
 		for i, ch := range s.Scheme.Channels {
 			if s.Hardware.MaxRabi[i] != w[0] || s.Hardware.FullScale[i] != w[1] || s.Errors.Amplitude[i] != w[3] {
 				t.Errorf("%s channel %s: max_rabi %g, full_scale %g, amplitude %g; want %v", task.ID, ch.Name, s.Hardware.MaxRabi[i], s.Hardware.FullScale[i], s.Errors.Amplitude[i], w)
@@ -157,7 +157,7 @@ func TestOverrides(t *testing.T) {
 		if s.Errors.TwoPhoton != w[2] || ts.Gate != task.Gate {
 			t.Errorf("%s: two-photon %g, gate %s", task.ID, s.Errors.TwoPhoton, ts.Gate)
 		}
-		b := base.spec
+		b := base.parsed
 		if s.Hardware.MaxSlew[0] != b.Hardware.MaxSlew[0] || s.Errors.OnePhoton != b.Errors.OnePhoton ||
 			s.Search.Seed != b.Search.Seed || s.Sweeps != b.Sweeps || s.Scheme.Levels[3].Decay != b.Scheme.Levels[3].Decay {
 			t.Errorf("%s: a field without a column changed", task.ID)

@@ -60,6 +60,9 @@ func sameTrees(t *testing.T, what string, a, b map[string][]byte) {
 // and summaries; a second run skips every finished task and touches no
 // file.
 func TestRunSameBytesAndIdempotent(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs designs; skipped with -short")
+	}
 	ctx := context.Background()
 	par, alone, arr := planDemo(t, "SX"), planDemo(t, "SX"), planDemo(t, "SX")
 	if _, err := Run(ctx, RunOptions{Work: par, Jobs: 4, ArrayIndex: -1}); err != nil {
@@ -134,6 +137,9 @@ func TestRunSameBytesAndIdempotent(t *testing.T) {
 // SIGTERM) leaves no output, no scratch and no failure record, and the
 // next run finishes it.
 func TestRunCancelLeavesNothing(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs designs; skipped with -short")
+	}
 	// One site whose 41×41 robustness map takes seconds.
 	dir := t.TempDir()
 	big, err := os.ReadFile(demoBase)
@@ -171,6 +177,9 @@ func TestRunCancelLeavesNothing(t *testing.T) {
 // below what one DAC step needs) is recorded with its message and exit
 // code; the other tasks still finish, and the summary shows all three.
 func TestRunFailureRecorded(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs designs; skipped with -short")
+	}
 	work, err := planTable(t, "site,hardware.max_slew\nt0,\nt1,1 kHz/ns\nt2,\n", "H")
 	if err != nil {
 		t.Fatal(err)
@@ -209,6 +218,9 @@ func TestRunFailureRecorded(t *testing.T) {
 // TestRunBusy: a task whose scratch folder another run holds is left to
 // that run, and is run once the lock is released.
 func TestRunBusy(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs designs; skipped with -short")
+	}
 	work, err := planTable(t, "site,errors.amplitude\nt0,0.01\n", "X")
 	if err != nil {
 		t.Fatal(err)
