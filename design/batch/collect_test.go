@@ -80,7 +80,25 @@ func TestCollectSummary(t *testing.T) {
 		}
 	}
 
-	// summary.csv holds the same figures, exactly.
+	checkSummaryCSV(t, work, s)
+	page, err := os.ReadFile(filepath.Join(work, IndexFile))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, r := range s.Tasks {
+		if !strings.Contains(string(page), `href="`+r.Report+`"`) {
+			t.Errorf("index.html does not link %s", r.Report)
+		}
+	}
+	if n := strings.Count(string(page), "<rect "); n < 4 {
+		t.Errorf("index.html figure has %d squares", n)
+	}
+}
+
+// checkSummaryCSV checks that summary.csv holds the summary's figures,
+// exactly (shortest round-trip formatting).
+func checkSummaryCSV(t *testing.T, work string, s *Summary) {
+	t.Helper()
 	f, err := os.Open(filepath.Join(work, SummaryCSV))
 	if err != nil {
 		t.Fatal(err)
@@ -96,18 +114,6 @@ func TestCollectSummary(t *testing.T) {
 		if rec[0] != r.Qubit || rec[1] != r.Gate || rec[3] != StatusPassed || fid != *r.ErrorModelFidelity || !strings.Contains(rec[11], "peak Rabi frequency pa") {
 			t.Errorf("csv row %d: %v", i+1, rec)
 		}
-	}
-	page, err := os.ReadFile(filepath.Join(work, IndexFile))
-	if err != nil {
-		t.Fatal(err)
-	}
-	for _, r := range s.Tasks {
-		if !strings.Contains(string(page), `href="`+r.Report+`"`) {
-			t.Errorf("index.html does not link %s", r.Report)
-		}
-	}
-	if n := strings.Count(string(page), "<rect "); n < 4 {
-		t.Errorf("index.html figure has %d squares", n)
 	}
 }
 

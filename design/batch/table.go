@@ -72,36 +72,9 @@ func readTable(data []byte, name string) (*Table, []Problem) {
 	if err != nil {
 		return nil, bad(csvLine(err), "", "", csvMsg(err), ErrBadTable)
 	}
-	var probs []Problem
-	qcol := -1
-	seen := map[string]bool{}
-	for j, h := range header {
-		h = strings.TrimSpace(strings.TrimPrefix(h, "\ufeff"))
-		header[j] = h
-		switch {
-		case h == "":
-			probs = append(probs, Problem{Row: 1, Column: fmt.Sprintf("#%d", j+1), Msg: "empty column header", Kind: ErrBadTable})
-		case seen[h]:
-			probs = append(probs, Problem{Row: 1, Column: h, Msg: "the column appears twice", Kind: ErrBadTable})
-		case contains(QubitColumns, h):
-			if qcol >= 0 {
-				probs = append(probs, Problem{Row: 1, Column: h, Msg: fmt.Sprintf("a table has one qubit column; found %s and %s", header[qcol], h), Kind: ErrBadTable})
-			}
-			qcol = j
-		}
-		seen[h] = true
-	}
-	if qcol < 0 {
-		probs = append(probs, Problem{Row: 1, Msg: fmt.Sprintf("no qubit column; the header names each row's qubit in a column called %s", strings.Join(QubitColumns, " or ")), Kind: ErrBadTable})
-	}
+	qcol, probs := readHeader(t, header)
 	if len(probs) > 0 {
 		return nil, probs
-	}
-	t.QubitColumn = header[qcol]
-	for j, h := range header {
-		if j != qcol {
-			t.Columns = append(t.Columns, h)
-		}
 	}
 	rows := map[string]int{}
 	for {
@@ -143,6 +116,43 @@ func readTable(data []byte, name string) (*Table, []Problem) {
 		}
 	}
 	return t, probs
+}
+
+// readHeader checks the header row and sets t's qubit column and spec
+// columns; it returns the qubit column's index.
+func readHeader(t *Table, header []string) (int, []Problem) {
+	var probs []Problem
+	qcol := -1
+	seen := map[string]bool{}
+	for j, h := range header {
+		h = strings.TrimSpace(strings.TrimPrefix(h, "\ufeff"))
+		header[j] = h
+		switch {
+		case h == "":
+			probs = append(probs, Problem{Row: 1, Column: fmt.Sprintf("#%d", j+1), Msg: "empty column header", Kind: ErrBadTable})
+		case seen[h]:
+			probs = append(probs, Problem{Row: 1, Column: h, Msg: "the column appears twice", Kind: ErrBadTable})
+		case contains(QubitColumns, h):
+			if qcol >= 0 {
+				probs = append(probs, Problem{Row: 1, Column: h, Msg: fmt.Sprintf("a table has one qubit column; found %s and %s", header[qcol], h), Kind: ErrBadTable})
+			}
+			qcol = j
+		}
+		seen[h] = true
+	}
+	if qcol < 0 {
+		probs = append(probs, Problem{Row: 1, Msg: fmt.Sprintf("no qubit column; the header names each row's qubit in a column called %s", strings.Join(QubitColumns, " or ")), Kind: ErrBadTable})
+	}
+	if len(probs) > 0 {
+		return qcol, probs
+	}
+	t.QubitColumn = header[qcol]
+	for j, h := range header {
+		if j != qcol {
+			t.Columns = append(t.Columns, h)
+		}
+	}
+	return qcol, nil
 }
 
 func csvLine(err error) int {
