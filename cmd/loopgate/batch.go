@@ -42,6 +42,7 @@ func newBatchPlanCmd() *cobra.Command {
 		memReq  string
 		noProbe bool
 		quiet   bool
+		asJSON  bool
 	)
 	cmd := &cobra.Command{
 		Use:   "plan base.yaml table.csv --gates H,SX -o work/",
@@ -56,6 +57,9 @@ and memory requests from the measured cost. Planning again into the same
 folder with the same inputs keeps the finished tasks and rewrites the script.`,
 		Args: inputArgs(cobra.ExactArgs(2)),
 		RunE: func(cmd *cobra.Command, args []string) error {
+			if opt.Work == "" || gates == "" {
+				return &design.InputError{Err: fmt.Errorf("plan needs the work folder (-o) and the gate list (--gates) (see '%s --help')", cmd.CommandPath())}
+			}
 			opt.Base, opt.Table, opt.Probe = args[0], args[1], !noProbe
 			for _, g := range strings.Split(gates, ",") {
 				if g = strings.TrimSpace(g); g != "" {
@@ -73,12 +77,16 @@ folder with the same inputs keeps the finished tasks and rewrites the script.`,
 					return &design.InputError{Err: err}
 				}
 			}
-			if !quiet {
+			if !quiet && !asJSON {
 				opt.Log = os.Stderr
 			}
 			res, err := batch.Plan(cmd.Context(), opt)
 			if err != nil {
 				return err
+			}
+			if asJSON {
+				return printJSON(cmd.OutOrStdout(), map[string]any{"work": opt.Work, "tasks": len(res.Manifest.Tasks),
+					"gates": res.Manifest.Gates, "qubits": len(res.Manifest.Qubits), "script": res.Script, "cost": res.Cost, "reused": res.Reused})
 			}
 			fmt.Fprintf(cmd.OutOrStdout(), "%d tasks in %s\nrun here:  loopgate batch run %s -j N\nor submit: sbatch %s\nthen:      loopgate batch collect %s\n",
 				len(res.Manifest.Tasks), opt.Work, opt.Work, res.Script, opt.Work)
@@ -86,10 +94,11 @@ folder with the same inputs keeps the finished tasks and rewrites the script.`,
 		},
 	}
 	f := cmd.Flags()
-	f.StringVarP(&opt.Work, "out", "o", "", "work folder (created; must be new, empty, or hold this plan)")
-	f.StringVar(&gates, "gates", "", "target gates, comma separated (see loopgate gates)")
+	f.StringVarP(&opt.Work, "out", "o", "", "work folder, required (created; must be new, empty, or hold this plan)")
+	f.StringVar(&gates, "gates", "", "target gates, comma separated, required (see loopgate gates)")
 	f.BoolVar(&noProbe, "no-probe", false, "do not run a task to measure the cost")
 	f.BoolVarP(&quiet, "quiet", "q", false, "print no progress on stderr")
+	f.BoolVar(&asJSON, "json", false, "print the plan's figures as JSON")
 	f.StringVar(&opt.Slurm.Partition, "partition", "", "Slurm partition")
 	f.StringVar(&opt.Slurm.Account, "account", "", "Slurm account")
 	f.StringArrayVar(&opt.Slurm.Modules, "module", nil, "environment module to load (repeatable)")
@@ -101,16 +110,15 @@ folder with the same inputs keeps the finished tasks and rewrites the script.`,
 	f.StringVar(&timeReq, "time", "", `time per array task, e.g. "20m" or "1h30m" (default: from the measured cost)`)
 	f.StringVar(&memReq, "mem", "", `memory per array task, e.g. "512M" or "2G" (default: from the measured cost)`)
 	f.StringVar(&opt.Slurm.Command, "command", "", "loopgate program the array tasks run (default: this one)")
-	cmd.MarkFlagRequired("out")
-	cmd.MarkFlagRequired("gates")
 	return cmd
 }
 
 func newBatchRunCmd() *cobra.Command {
 	var (
-		opt   batch.RunOptions
-		ids   []string
-		quiet bool
+		opt    batch.RunOptions
+		ids    []string
+		quiet  bool
+		asJSON bool
 	)
 	cmd := &cobra.Command{
 		Use:   "run work/",
@@ -125,10 +133,27 @@ still run, and run exits with the first failure's exit code.`,
 		Args: inputArgs(cobra.ExactArgs(1)),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			opt.Work, opt.IDs = args[0], ids
-			if !quiet {
+			if !quiet && !asJSON {
 				opt.Log = cmd.OutOrStdout()
 			}
 			runs, err := batch.Run(cmd.Context(), opt)
+			if asJSON && runs != nil {
+				type runJSON struct {
+					ID    string  `json:"id"`
+					State string  `json:"state"`
+					Wall  float64 `json:"wall_s"`
+				}
+				list := []runJSON{}
+				for _, r := range runs {
+					if r.ID != "" {
+						list = append(list, runJSON{r.ID, r.State, r.Wall.Seconds()})
+					}
+				}
+				if perr := printJSON(cmd.OutOrStdout(), list); perr != nil {
+					return perr
+				}
+				return err
+			}
 			counts := map[string]int{}
 			for _, r := range runs {
 				counts[r.State]++
@@ -146,6 +171,7 @@ still run, and run exits with the first failure's exit code.`,
 	f.IntVar(&opt.ArrayIndex, "array-index", -1, "run the share of this array index")
 	f.IntVar(&opt.PerElement, "per-index", 1, "tasks per array index (as planned)")
 	f.BoolVarP(&quiet, "quiet", "q", false, "print nothing on stdout")
+	f.BoolVar(&asJSON, "json", false, "print each task's state as JSON")
 	return cmd
 }
 

@@ -30,6 +30,12 @@ var (
 	ErrNotPassed = errors.New("not every task passed")
 )
 
+var (
+	_ error = (*PlanError)(nil)
+	_ error = (*TasksFailedError)(nil)
+	_ error = (*NotPassedError)(nil)
+)
+
 // Problem is one thing wrong with the inputs of a plan.
 type Problem struct {
 	// Row is the table row (spreadsheet numbering, header = 1), or 0 when
