@@ -176,7 +176,10 @@ func slurmCancelRerun(t *testing.T, exe string) {
 	time.Sleep(300 * time.Millisecond)
 	slurm(t, "scancel", job)
 	for deadline = time.Now().Add(60 * time.Second); ; time.Sleep(200 * time.Millisecond) {
-		if out := slurm(t, "squeue", "-h", "-j", job); out == "" {
+		// An ended job leaves the queue; once purged, squeue calls its id
+		// invalid.
+		out, err := exec.Command("squeue", "-h", "-j", job).CombinedOutput()
+		if strings.TrimSpace(string(out)) == "" || (err != nil && strings.Contains(string(out), "Invalid job id")) {
 			break
 		}
 		if time.Now().After(deadline) {
