@@ -4,17 +4,19 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"github.com/loopgate/loopgate/design/spec"
-	"github.com/loopgate/loopgate/waveform/wavefile"
 	"io"
 	"math"
 	"math/cmplx"
 	"path/filepath"
 	"strings"
 
+	"github.com/loopgate/loopgate/design/spec"
 	"github.com/loopgate/loopgate/holonomy"
 	"github.com/loopgate/loopgate/optimize"
 	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/robust"
+	"github.com/loopgate/loopgate/waveform/sim"
+	"github.com/loopgate/loopgate/waveform/wavefile"
 )
 
 // Version is the loopgate version recorded in every file it writes.
@@ -223,7 +225,7 @@ func timeLoop(spc *spec.Spec, plan *waveform.Plan, log io.Writer) (*waveform.Wav
 			if !adiabatic {
 				return w, nil
 			}
-			v, err := waveform.Verify(w, waveform.ErrorModel{})
+			v, err := sim.Verify(w, sim.ErrorModel{})
 			if err != nil {
 				return nil, fmt.Errorf("spec %s: verification: %w", spc.File, err)
 			}
@@ -292,7 +294,7 @@ func timeLoop(spc *spec.Spec, plan *waveform.Plan, log io.Writer) (*waveform.Wav
 // hardwareFailures sorts the failed hardware checks of v: long reports a
 // gate that is too long (duration or sample count), other any other
 // failed hardware limit.
-func hardwareFailures(v *waveform.Verification) (long, other bool) {
+func hardwareFailures(v *sim.Verification) (long, other bool) {
 	for _, c := range v.Checks {
 		switch {
 		case c.Pass || c.Name == "fidelity" || c.Name == "adiabaticity":
@@ -578,21 +580,21 @@ func amplitudePenalty(sc *holonomy.Scheme, shape optimize.Shape, maxRabi []float
 // member's common amplitude error and detuning error.
 func simulateEnsemble(spc *spec.Spec, w *waveform.Waveform, r *RobustSummary) error {
 	rb := spc.Search.Robust
-	sim := waveform.NewSimulator(w)
-	out := new(waveform.Outcome)
+	sm := sim.NewSimulator(w)
+	out := new(sim.Outcome)
 	r.Built, r.BuiltMean, r.BuiltWorst = nil, 0, 0
 	for _, e := range []float64{-rb.Amplitude, 0, rb.Amplitude} {
 		for _, d := range []float64{-rb.Detuning, 0, rb.Detuning} {
 			if (rb.Amplitude == 0 && e != 0) || (rb.Detuning == 0 && d != 0) {
 				continue
 			}
-			m := waveform.ErrorModel{AmplitudeError: e}
+			m := sim.ErrorModel{AmplitudeError: e}
 			if rb.DetuningKind == spec.TwoPhoton {
 				m.TwoPhotonDetuning = d
 			} else {
 				m.OnePhotonDetuning = d
 			}
-			if err := sim.Run(m, out); err != nil {
+			if err := sm.Run(m, out); err != nil {
 				return fmt.Errorf("spec %s: robust design: %w", spc.File, err)
 			}
 			inf := 1 - out.Fidelity
@@ -712,9 +714,9 @@ func hardwareOf(spc *spec.Spec) waveform.Hardware {
 
 // errorModelOf converts the spec's verification errors. The decay rate is
 // the largest Level.Decay among the excited levels.
-func errorModelOf(spc *spec.Spec) waveform.ErrorModel {
+func errorModelOf(spc *spec.Spec) sim.ErrorModel {
 	e := spc.Errors
-	m := waveform.ErrorModel{
+	m := sim.ErrorModel{
 		OnePhotonDetuning: e.OnePhoton,
 		TwoPhotonDetuning: e.TwoPhoton,
 		Dephasing:         e.Dephasing,
@@ -722,9 +724,9 @@ func errorModelOf(spc *spec.Spec) waveform.ErrorModel {
 	}
 	switch e.Filter {
 	case spec.GaussianFilter:
-		m.RiseTime, m.Filter = e.RiseTime, waveform.GaussianFilter
+		m.RiseTime, m.Filter = e.RiseTime, sim.GaussianFilter
 	case spec.FirstOrderFilter:
-		m.RiseTime, m.Filter = e.RiseTime, waveform.FirstOrderFilter
+		m.RiseTime, m.Filter = e.RiseTime, sim.FirstOrderFilter
 	}
 	m.PhaseStep = e.PhaseStep
 	common := true
@@ -749,11 +751,11 @@ func errorModelOf(spc *spec.Spec) waveform.ErrorModel {
 // checkModels validates the error model and the model at both ends of
 // every sweep range before any simulation runs, so that bad input is
 // reported as such.
-func checkModels(w *waveform.Waveform, m waveform.ErrorModel, sp sweepPlan) error {
-	if err := w.CheckModel(m); err != nil {
+func checkModels(w *waveform.Waveform, m sim.ErrorModel, sp sweepPlan) error {
+	if err := sim.CheckModel(w, m); err != nil {
 		return err
 	}
-	ranges := []waveform.Range{sp.amplitude, sp.detuning, sp.mapX, sp.mapY}
+	ranges := []robust.Range{sp.amplitude, sp.detuning, sp.mapX, sp.mapY}
 	if sp.oneExtra != nil {
 		ranges = append(ranges, *sp.oneExtra)
 	}
@@ -764,14 +766,14 @@ func checkModels(w *waveform.Waveform, m waveform.ErrorModel, sp sweepPlan) erro
 		for _, v := range []float64{r.Min, r.Max} {
 			e := m
 			switch r.Axis {
-			case waveform.AmplitudeAxis:
+			case robust.AmplitudeAxis:
 				e.AmplitudeError = v
-			case waveform.OnePhotonAxis:
+			case robust.OnePhotonAxis:
 				e.OnePhotonDetuning = v
-			case waveform.TwoPhotonAxis:
+			case robust.TwoPhotonAxis:
 				e.TwoPhotonDetuning = v
 			}
-			if err := w.CheckModel(e); err != nil {
+			if err := sim.CheckModel(w, e); err != nil {
 				return fmt.Errorf("sweep of the %s to %g: %w", r.Axis, v, err)
 			}
 		}
@@ -781,9 +783,9 @@ func checkModels(w *waveform.Waveform, m waveform.ErrorModel, sp sweepPlan) erro
 
 // sweepPlan lists the robustness analysis to run.
 type sweepPlan struct {
-	amplitude, detuning waveform.Range
-	oneExtra            *waveform.Range // a one-photon sweep, geometric only
-	mapX, mapY          waveform.Range
+	amplitude, detuning robust.Range
+	oneExtra            *robust.Range // a one-photon sweep, geometric only
+	mapX, mapY          robust.Range
 }
 
 // sweepsOf plans the robustness analysis of a gate of the given duration
@@ -796,19 +798,19 @@ type sweepPlan struct {
 // outward search.
 func sweepsOf(spc *spec.Spec, duration float64) sweepPlan {
 	s := spc.Sweeps
-	amp := waveform.Range{Axis: waveform.AmplitudeAxis, Min: -s.Amplitude.Span, Max: s.Amplitude.Span, Points: s.Amplitude.Points}
-	det := waveform.Range{Axis: waveform.TwoPhotonAxis, Min: -s.Detuning.Span, Max: s.Detuning.Span, Points: s.Detuning.Points}
+	amp := robust.Range{Axis: robust.AmplitudeAxis, Min: -s.Amplitude.Span, Max: s.Amplitude.Span, Points: s.Amplitude.Points}
+	det := robust.Range{Axis: robust.TwoPhotonAxis, Min: -s.Detuning.Span, Max: s.Detuning.Span, Points: s.Detuning.Points}
 	p := sweepPlan{
 		amplitude: amp,
 		detuning:  det,
-		mapX:      waveform.Range{Axis: waveform.AmplitudeAxis, Min: amp.Min, Max: amp.Max, Points: s.MapAmplitude},
-		mapY:      waveform.Range{Axis: waveform.TwoPhotonAxis, Min: det.Min, Max: det.Max, Points: s.MapDetuning},
+		mapX:      robust.Range{Axis: robust.AmplitudeAxis, Min: amp.Min, Max: amp.Max, Points: s.MapAmplitude},
+		mapY:      robust.Range{Axis: robust.TwoPhotonAxis, Min: det.Min, Max: det.Max, Points: s.MapDetuning},
 	}
 	if s.DetuningKind == spec.OnePhoton {
 		one := det
-		one.Axis = waveform.OnePhotonAxis
+		one.Axis = robust.OnePhotonAxis
 		p.oneExtra = &one
-		p.mapY.Axis = waveform.OnePhotonAxis
+		p.mapY.Axis = robust.OnePhotonAxis
 		if duration > 0 {
 			p.detuning.Min, p.detuning.Max = -1/duration, 1/duration
 		}

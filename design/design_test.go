@@ -4,8 +4,6 @@ import (
 	"bytes"
 	"context"
 	"errors"
-	"github.com/loopgate/loopgate/design/spec"
-	"github.com/loopgate/loopgate/waveform/wavefile"
 	"math"
 	"os"
 	"path/filepath"
@@ -13,12 +11,13 @@ import (
 	"strings"
 	"testing"
 
-	"github.com/xeipuuv/gojsonschema"
-
+	"github.com/loopgate/loopgate/design/spec"
 	"github.com/loopgate/loopgate/holonomy"
 	"github.com/loopgate/loopgate/optimize"
 	"github.com/loopgate/loopgate/schemas"
-	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/sim"
+	"github.com/loopgate/loopgate/waveform/wavefile"
+	"github.com/xeipuuv/gojsonschema"
 )
 
 // demoSpecs are the shipped demo specs: H, T and √X on the tripod
@@ -401,7 +400,7 @@ func TestRobustDesign(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, m := range r.Built {
-		o, err := waveform.Simulate(file.Waveform, waveform.ErrorModel{AmplitudeError: m.Amplitude, OnePhotonDetuning: m.Detuning})
+		o, err := sim.Simulate(file.Waveform, sim.ErrorModel{AmplitudeError: m.Amplitude, OnePhotonDetuning: m.Detuning})
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -4,6 +4,7 @@ import (
 	"math"
 
 	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/sim"
 )
 
 // Outcome is what Design and VerifyFile report: the figures of merit, the
@@ -203,7 +204,7 @@ func newOutcome(cmd, source, title, target string, w *waveform.Waveform, a *anal
 	return o
 }
 
-func figures(v *waveform.Verification) Figures {
+func figures(v *sim.Verification) Figures {
 	return Figures{
 		Fidelity:     v.Fidelity,
 		Leakage:      v.Leakage,

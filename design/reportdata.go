@@ -1,14 +1,15 @@
 package design
 
 import (
-	"github.com/loopgate/loopgate/design/spec"
 	"io"
 	"math"
 	"path/filepath"
 
 	"github.com/loopgate/loopgate/design/report"
+	"github.com/loopgate/loopgate/design/spec"
 	"github.com/loopgate/loopgate/holonomy"
 	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/sim"
 )
 
 // reportLoopPoints is the number of points per adiabatic segment drawn on
@@ -196,7 +197,7 @@ func waveformPanels(w *waveform.Waveform) []report.Waveform {
 	return out
 }
 
-func populationPanels(sc *holonomy.Scheme, tr *waveform.Outcome) []report.Populations {
+func populationPanels(sc *holonomy.Scheme, tr *sim.Outcome) []report.Populations {
 	if tr == nil || len(tr.Times) == 0 {
 		return nil
 	}

@@ -3,14 +3,15 @@ package design
 import (
 	"context"
 	"fmt"
-	"github.com/loopgate/loopgate/design/spec"
-	"github.com/loopgate/loopgate/waveform/wavefile"
 	"io"
 	"math"
 	"os"
 	"path/filepath"
 
-	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/design/spec"
+	"github.com/loopgate/loopgate/waveform/robust"
+	"github.com/loopgate/loopgate/waveform/sim"
+	"github.com/loopgate/loopgate/waveform/wavefile"
 )
 
 // ErrorFlags holds error-model overrides as the user typed them on the
@@ -28,7 +29,7 @@ type ErrorFlags struct {
 }
 
 // apply parses the flags into m.
-func (f ErrorFlags) apply(m *waveform.ErrorModel) error {
+func (f ErrorFlags) apply(m *sim.ErrorModel) error {
 	set := func(flag, text string, dim spec.Dimension, dst *float64) error {
 		if text == "" {
 			return nil
@@ -71,9 +72,9 @@ func (f ErrorFlags) apply(m *waveform.ErrorModel) error {
 	case "none":
 		m.RiseTime = 0
 	case "gaussian":
-		m.Filter = waveform.GaussianFilter
+		m.Filter = sim.GaussianFilter
 	case "first-order":
-		m.Filter = waveform.FirstOrderFilter
+		m.Filter = sim.FirstOrderFilter
 	default:
 		return &InputError{Err: fmt.Errorf("flag --filter: %q; expected none, gaussian or first-order", f.Filter)}
 	}
@@ -128,7 +129,7 @@ func VerifyFile(ctx context.Context, path string, opt VerifyOptions) (*Outcome, 
 		}
 	}
 	w := f.Waveform
-	model := waveform.ErrorModel{}
+	model := sim.ErrorModel{}
 	sp := defaultSweeps()
 	title, target, preset := "", targetLabel(w.Target), ""
 	if f.Spec != "" {
@@ -150,7 +151,7 @@ func VerifyFile(ctx context.Context, path string, opt VerifyOptions) (*Outcome, 
 	if err != nil {
 		return nil, err
 	}
-	again, err := waveform.Verify(w, f.Verification.Model)
+	again, err := sim.Verify(w, f.Verification.Model)
 	if err != nil {
 		return nil, fmt.Errorf("waveform %s: %w", path, err)
 	}
@@ -205,7 +206,7 @@ func openInput(path, what string) (*os.File, error) {
 
 // defaultSweeps is used for waveform files without an embedded spec.
 func defaultSweeps() sweepPlan {
-	amp := waveform.Range{Axis: waveform.AmplitudeAxis, Min: -0.1, Max: 0.1, Points: 21}
-	det := waveform.Range{Axis: waveform.TwoPhotonAxis, Min: -1e6, Max: 1e6, Points: 21}
+	amp := robust.Range{Axis: robust.AmplitudeAxis, Min: -0.1, Max: 0.1, Points: 21}
+	det := robust.Range{Axis: robust.TwoPhotonAxis, Min: -1e6, Max: 1e6, Points: 21}
 	return sweepPlan{amplitude: amp, detuning: det, mapX: amp, mapY: det}
 }

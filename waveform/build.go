@@ -12,7 +12,7 @@ import (
 // adiabaticity is then measured on the sampled waveform; the two differ by
 // a few percent (up to 6 % seen on spin-½ loops), so aiming at 0.9 α*
 // keeps the measured value within the goal the verification checks.
-const scheduleMargin = 0.9
+const ScheduleMargin = 0.9
 
 // Waveform is a timed, sampled and DAC-quantised gate, ready to be
 // verified, written to a file or replayed. Build makes one from a Plan;
@@ -82,7 +82,7 @@ func (w *Waveform) Duration() float64 { return float64(w.Len()) / w.Hardware.Sam
 // Quantized returns the drive channel c emits at sample k after the DAC,
 // code × FullScale/(2^(b−1) − 1), in Hz.
 func (w *Waveform) Quantized(c, k int) complex128 {
-	l := w.Hardware.lsb(c)
+	l := w.Hardware.LSB(c)
 	return complex(float64(w.CodeI[c][k])*l, float64(w.CodeQ[c][k])*l)
 }
 
@@ -149,12 +149,12 @@ const (
 func plannedSlew(hw *Hardware) (float64, error) {
 	var lsb float64
 	for c := range hw.FullScale {
-		lsb = math.Max(lsb, hw.lsb(c))
+		lsb = math.Max(lsb, hw.LSB(c))
 	}
 	floor := 2 * lsb * hw.SampleRate
 	slew := math.Min(slewUse*hw.MaxSlew, hw.MaxSlew-floor)
 	if slew <= 0 {
-		return 0, &LimitError{Check: NewCheck("slew rate (two DAC steps per sample)", floor, hw.MaxSlew, "Hz/s", boundMax)}
+		return 0, &LimitError{Check: NewCheck("slew rate (two DAC steps per sample)", floor, hw.MaxSlew, "Hz/s", BoundMax)}
 	}
 	return slew, nil
 }
@@ -235,7 +235,7 @@ func Build(p *Plan, hw Hardware) (*Waveform, error) {
 	if err := hw.Validate(len(p.Scheme.Channels)); err != nil {
 		return nil, err
 	}
-	hw = hw.clone()
+	hw = hw.Clone()
 	slew, err := plannedSlew(&hw)
 	if err != nil {
 		return nil, err
@@ -243,7 +243,7 @@ func Build(p *Plan, hw Hardware) (*Waveform, error) {
 	sc, hz := CanonScheme(p.Scheme)
 	bare := SchemeFromHz(sc, make([]float64, len(hz)))
 	b := &builder{
-		sc: sc, bare: bare, hw: hw, alpha: scheduleMargin * p.adiabaticity(), slew: slew,
+		sc: sc, bare: bare, hw: hw, alpha: ScheduleMargin * p.adiabaticity(), slew: slew,
 		sp: newSpectrum(sc),
 		h:  holonomy.NewMat(sc.Dim(), sc.Dim()), dh: holonomy.NewMat(sc.Dim(), sc.Dim()),
 		pt: sc.NewPoint(), tmp: sc.NewPoint(),
@@ -303,7 +303,7 @@ func Build(p *Plan, hw Hardware) (*Waveform, error) {
 		limit, what = MaxSampleLimit, "sample count (waveform file bound)"
 	}
 	if n0 > limit || n > limit {
-		return nil, &LimitError{Check: NewCheck(what, float64(n), float64(limit), "", boundMax)}
+		return nil, &LimitError{Check: NewCheck(what, float64(n), float64(limit), "", BoundMax)}
 	}
 	w := &Waveform{
 		Scheme:       sc,
@@ -361,9 +361,9 @@ func (b *builder) ampLimit(maxU []float64) (float64, error) {
 		if u == 0 {
 			continue
 		}
-		lim := math.Min(b.hw.MaxRabi[c], b.hw.FullScale[c]) - b.hw.lsb(c)
+		lim := math.Min(b.hw.MaxRabi[c], b.hw.FullScale[c]) - b.hw.LSB(c)
 		if lim <= 0 {
-			return 0, fmt.Errorf("channel %q: the Rabi limit %g Hz is below one DAC step (%g Hz)", b.sc.Channels[c].Name, b.hw.MaxRabi[c], b.hw.lsb(c))
+			return 0, fmt.Errorf("channel %q: the Rabi limit %g Hz is below one DAC step (%g Hz)", b.sc.Channels[c].Name, b.hw.MaxRabi[c], b.hw.LSB(c))
 		}
 		a = math.Min(a, 2*math.Pi*lim/u)
 	}

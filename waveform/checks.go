@@ -24,8 +24,8 @@ type Check struct {
 }
 
 const (
-	boundMax = false
-	boundMin = true
+	BoundMax = false
+	BoundMin = true
 )
 
 func NewCheck(name string, value, limit float64, unit string, lower bool) Check {
@@ -72,9 +72,9 @@ func (w *Waveform) HardwareChecks() []Check {
 			prev = z
 		}
 		out = append(out,
-			NewCheck("peak Rabi frequency "+ch.Name, peak, hw.MaxRabi[c], "Hz", boundMax),
-			NewCheck("slew rate "+ch.Name, slew, hw.MaxSlew, "Hz/s", boundMax),
-			NewCheck("DAC code range "+ch.Name, code, mc, "", boundMax),
+			NewCheck("peak Rabi frequency "+ch.Name, peak, hw.MaxRabi[c], "Hz", BoundMax),
+			NewCheck("slew rate "+ch.Name, slew, hw.MaxSlew, "Hz/s", BoundMax),
+			NewCheck("DAC code range "+ch.Name, code, mc, "", BoundMax),
 		)
 	}
 	rem := 0.0
@@ -82,10 +82,10 @@ func (w *Waveform) HardwareChecks() []Check {
 		rem = float64(n % hw.Granularity)
 	}
 	out = append(out,
-		NewCheck("sample count", float64(n), float64(hw.MaxSamples), "", boundMax),
-		NewCheck("sample count remainder modulo granularity", rem, 0, "", boundMax),
-		NewCheck("duration", w.Duration(), hw.MaxDuration, "s", boundMax),
-		NewCheck("minimum duration", w.Duration(), hw.MinDuration, "s", boundMin),
+		NewCheck("sample count", float64(n), float64(hw.MaxSamples), "", BoundMax),
+		NewCheck("sample count remainder modulo granularity", rem, 0, "", BoundMax),
+		NewCheck("duration", w.Duration(), hw.MaxDuration, "s", BoundMax),
+		NewCheck("minimum duration", w.Duration(), hw.MinDuration, "s", BoundMin),
 	)
 	return out
 }

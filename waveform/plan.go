@@ -172,10 +172,10 @@ func (h *Hardware) Validate(nch int) error {
 func (h *Hardware) MaxCode() float64 { return float64(int64(1)<<(h.DACBits-1) - 1) }
 
 // lsb returns the drive step (Hz) of one DAC code on channel c.
-func (h *Hardware) lsb(c int) float64 { return h.FullScale[c] / h.MaxCode() }
+func (h *Hardware) LSB(c int) float64 { return h.FullScale[c] / h.MaxCode() }
 
 // clone returns a deep copy.
-func (h Hardware) clone() Hardware {
+func (h Hardware) Clone() Hardware {
 	h.MaxRabi = append([]float64(nil), h.MaxRabi...)
 	h.FullScale = append([]float64(nil), h.FullScale...)
 	return h

@@ -5,11 +5,12 @@ import (
 	"encoding/hex"
 	"errors"
 	"fmt"
-	"github.com/loopgate/loopgate/waveform"
 	"io"
 	"math"
 
 	"github.com/loopgate/loopgate/holonomy"
+	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/sim"
 )
 
 const (
@@ -53,7 +54,7 @@ type File struct {
 	// Waveform is the waveform.
 	Waveform *waveform.Waveform
 	// Verification is the verification written with it.
-	Verification *waveform.Verification
+	Verification *sim.Verification
 }
 
 // SpecHash returns the lower-case hexadecimal SHA-256 of spec.

@@ -5,7 +5,6 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
-	"github.com/loopgate/loopgate/waveform"
 	"io"
 	"math"
 	"sort"
@@ -14,6 +13,8 @@ import (
 
 	"github.com/loopgate/loopgate/holonomy"
 	"github.com/loopgate/loopgate/schemas"
+	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/sim"
 	"github.com/xeipuuv/gojsonschema"
 )
 
@@ -389,7 +390,7 @@ func (d *waveDoc) file(name string) (*File, error) {
 }
 
 // parse checks the verification document.
-func (d *verificationDoc) parse(name string, nq, nch int) (*waveform.Verification, error) {
+func (d *verificationDoc) parse(name string, nq, nch int) (*sim.Verification, error) {
 	p := "/verification"
 	if len(d.PeakAux) != nq || len(d.PeakExcited) != nq {
 		return nil, ferr(name, p+"/peak_aux_population", "%d and %d peak populations for %d qubit levels", len(d.PeakAux), len(d.PeakExcited), nq)
@@ -405,8 +406,8 @@ func (d *verificationDoc) parse(name string, nq, nch int) (*waveform.Verificatio
 	if !(m.PhaseStep >= 0 && m.PhaseStep <= math.Pi) {
 		return nil, ferr(name, p+"/model/phase_step_rad", "phase step %g rad; need 0 (exact phases) to π", m.PhaseStep)
 	}
-	v := &waveform.Verification{
-		Model: waveform.ErrorModel{
+	v := &sim.Verification{
+		Model: sim.ErrorModel{
 			AmplitudeError: m.AmplitudeError, OnePhotonDetuning: m.OnePhotonDetuning, TwoPhotonDetuning: m.TwoPhotonDetuning,
 			Decay: m.Decay, Dephasing: m.Dephasing, RiseTime: m.RiseTime, Filter: filter, SubSteps: m.SubSteps,
 			PhaseStep: m.PhaseStep, Unquantized: !m.Quantized,
@@ -438,22 +439,22 @@ func (d *verificationDoc) parse(name string, nq, nch int) (*waveform.Verificatio
 // time and returns the filter kind. An absent filter (a file written
 // before the field existed) means gaussian with a rise time, none
 // without.
-func parseFilter(name, ptr string, m *modelDoc) (waveform.FilterKind, error) {
+func parseFilter(name, ptr string, m *modelDoc) (sim.FilterKind, error) {
 	switch m.Filter {
 	case "":
-		return waveform.GaussianFilter, nil
+		return sim.GaussianFilter, nil
 	case "none":
 		if m.RiseTime != 0 {
 			return 0, ferr(name, ptr+"/filter", "filter is none but rise_time_s is %g s; give gaussian or first-order, or a rise time of 0", m.RiseTime)
 		}
-		return waveform.GaussianFilter, nil
+		return sim.GaussianFilter, nil
 	}
-	var k waveform.FilterKind
+	var k sim.FilterKind
 	switch m.Filter {
-	case waveform.GaussianFilter.String():
-		k = waveform.GaussianFilter
-	case waveform.FirstOrderFilter.String():
-		k = waveform.FirstOrderFilter
+	case sim.GaussianFilter.String():
+		k = sim.GaussianFilter
+	case sim.FirstOrderFilter.String():
+		k = sim.FirstOrderFilter
 	default:
 		return 0, ferr(name, ptr+"/filter", "filter %q; expected none, gaussian or first-order", m.Filter)
 	}

@@ -1,4 +1,4 @@
-package waveform
+package sim
 
 import (
 	"math"
@@ -6,15 +6,17 @@ import (
 	"testing"
 
 	"github.com/loopgate/loopgate/holonomy"
+	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/internal/wavetest"
 )
 
 // The sampled envelope of a cyclic segment has exactly the prescribed
 // pulse area: Σ_k A_k Δt = 2π, read back from the emitted I/Q samples.
 func TestCyclicAreaExact(t *testing.T) {
 	for _, rate := range []float64{1e9, 0.37e9, 2.5e9} {
-		hw := testHardware(2, 10e6)
+		hw := wavetest.Hardware(2, 10e6)
 		hw.SampleRate = rate
-		w := mustBuild(t, lambdaPlan(math.Pi/4, 0, hadamard()), hw)
+		w := wavetest.MustBuild(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), hw)
 		// Unit drive (sin(π/8), −cos(π/8)): channel p1 has |u| = cos(π/8).
 		u := math.Cos(math.Pi / 8)
 		var area float64
@@ -40,11 +42,11 @@ func TestCyclicAreaExact(t *testing.T) {
 // θ = π/4, φ = 0 gives n = (1, 0, 1)/√2, n·σ = H. Sampled at 1 GS/s,
 // quantised to 14 bits and propagated exactly, it verifies at F ≥ 1 − 1e-8 (the exact residual, 5e-10, is the DAC quantisation).
 func TestLambdaHadamard(t *testing.T) {
-	if d := holonomy.FrobeniusDist(nDotSigma(math.Pi/4, 0), hadamard()); d > 1e-15 {
+	if d := holonomy.FrobeniusDist(wavetest.NDotSigma(math.Pi/4, 0), wavetest.Hadamard()); d > 1e-15 {
 		t.Fatalf("n·σ for θ = π/4 is not H: distance %g", d)
 	}
-	w := mustBuild(t, lambdaPlan(math.Pi/4, 0, hadamard()), testHardware(2, 10e6))
-	v := mustVerify(t, w, ErrorModel{})
+	w := wavetest.MustBuild(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6))
+	v := wavetest.Must(Verify(w, ErrorModel{}))(t)
 	t.Logf("Λ Hadamard: %d samples, %.4g s, F = %.12f, leakage %.3g, peak excited %v", w.Len(), w.Duration(), v.Fidelity, v.Leakage, v.PeakExcited)
 	if v.Fidelity < 1-1e-8 {
 		t.Errorf("fidelity %.12f < 1 − 1e-8 (exact: 1 − 5e-10)", v.Fidelity)
@@ -62,7 +64,7 @@ func TestLambdaHadamard(t *testing.T) {
 	}
 	// Without quantisation the drive direction is exactly constant, all
 	// steps commute and the gate is exact to rounding.
-	vu := mustVerify(t, w, ErrorModel{Unquantized: true})
+	vu := wavetest.Must(Verify(w, ErrorModel{Unquantized: true}))(t)
 	if 1-vu.Fidelity > 1e-12 {
 		t.Errorf("unquantised fidelity 1 − %.3g", 1-vu.Fidelity)
 	}
@@ -92,17 +94,17 @@ func TestTwoSegmentLoop(t *testing.T) {
 			}
 		}
 		if gamma == 0 {
-			if d := holonomy.FrobeniusDist(target, nDotSigma(theta, phi)); d > 1e-15 {
+			if d := holonomy.FrobeniusDist(target, wavetest.NDotSigma(theta, phi)); d > 1e-15 {
 				t.Fatalf("γ = 0 target differs from n·σ by %g", d)
 			}
 		}
 		g := gamma
-		p := &Plan{
+		p := &waveform.Plan{
 			Scheme: holonomy.Lambda(),
 			Target: target,
-			Segments: []Segment{
-				{Kind: Cyclic, Area: math.Pi, Shape: func(s float64, p holonomy.Point) { holonomy.LambdaPoint(p, 1, theta, phi) }},
-				{Kind: Cyclic, Area: math.Pi, Shape: func(s float64, p holonomy.Point) {
+			Segments: []waveform.Segment{
+				{Kind: waveform.Cyclic, Area: math.Pi, Shape: func(s float64, p holonomy.Point) { holonomy.LambdaPoint(p, 1, theta, phi) }},
+				{Kind: waveform.Cyclic, Area: math.Pi, Shape: func(s float64, p holonomy.Point) {
 					holonomy.LambdaPoint(p, 1, theta, phi)
 					for c := range p.Drive {
 						p.Drive[c] *= cmplx.Rect(1, g)
@@ -110,8 +112,8 @@ func TestTwoSegmentLoop(t *testing.T) {
 				}},
 			},
 		}
-		w := mustBuild(t, p, testHardware(2, 10e6))
-		v := mustVerify(t, w, ErrorModel{})
+		w := wavetest.MustBuild(t, p, wavetest.Hardware(2, 10e6))
+		v := wavetest.Must(Verify(w, ErrorModel{}))(t)
 		if v.Fidelity < 0.9999 || len(w.Spans) != 2 || w.Spans[1].First != w.Spans[0].Len {
 			t.Errorf("γ = %g: F = %.8f, spans %+v", gamma, v.Fidelity, w.Spans)
 		}
@@ -131,16 +133,16 @@ func TestTwoSegmentLoop(t *testing.T) {
 // against the target.
 func TestTripodAdiabaticFidelity(t *testing.T) {
 	delta := math.Pi / 4
-	res, err := holonomy.NewWilson(holonomy.Tripod()).Adaptive(sliceLoop(delta), holonomy.AdaptiveOptions{Points: 96, Tol: 1e-10})
+	res, err := holonomy.NewWilson(holonomy.Tripod()).Adaptive(wavetest.SliceLoop(delta), holonomy.AdaptiveOptions{Points: 96, Tol: 1e-10})
 	if err != nil {
 		t.Fatal(err)
 	}
-	if d := holonomy.FrobeniusDist(res.U, rotation(delta)); d > 1e-8 {
+	if d := holonomy.FrobeniusDist(res.U, wavetest.Rotation(delta)); d > 1e-8 {
 		t.Fatalf("Wilson loop %v differs from the solid-angle rotation by %g", res.U, d)
 	}
-	for _, alpha := range []float64{DefaultAdiabaticity, 0.02} {
-		w := mustBuild(t, tripodPlan(delta, alpha), testHardware(3, 10e6))
-		v := mustVerify(t, w, ErrorModel{})
+	for _, alpha := range []float64{waveform.DefaultAdiabaticity, 0.02} {
+		w := wavetest.MustBuild(t, wavetest.TripodPlan(delta, alpha), wavetest.Hardware(3, 10e6))
+		v := wavetest.Must(Verify(w, ErrorModel{}))(t)
 		t.Logf("α* = %g: %d samples (%.3g µs), F = %.9f, leakage %.3g, α = %.4g, peak excited %.3g %.3g",
 			alpha, w.Len(), w.Duration()*1e6, v.Fidelity, v.Leakage, v.Adiabaticity, v.PeakExcited[0], v.PeakExcited[1])
 		if v.Fidelity < 0.9999 {
@@ -151,7 +153,7 @@ func TestTripodAdiabaticFidelity(t *testing.T) {
 		}
 		// The measured parameter meets the target it was timed for, and
 		// the timing does not waste time: it is within 5% of it.
-		if v.Adiabaticity > alpha || v.Adiabaticity < 0.95*scheduleMargin*alpha {
+		if v.Adiabaticity > alpha || v.Adiabaticity < 0.95*waveform.ScheduleMargin*alpha {
 			t.Errorf("α* = %g: measured adiabaticity %.5g", alpha, v.Adiabaticity)
 		}
 		// Peak of the excited level stays small for a dark-state gate.
@@ -165,16 +167,16 @@ func TestTripodAdiabaticFidelity(t *testing.T) {
 // the minimum duration forcing the gate to 2× and 4× its length, α·T_loop
 // stays constant (the schedule's shape is fixed, only its speed changes).
 func TestAdiabaticityInverseDuration(t *testing.T) {
-	base := mustBuild(t, tripodPlan(math.Pi/4, 0.05), testHardware(3, 10e6))
+	base := wavetest.MustBuild(t, wavetest.TripodPlan(math.Pi/4, 0.05), wavetest.Hardware(3, 10e6))
 	a0, err := base.MeasureAdiabaticity()
 	if err != nil {
 		t.Fatal(err)
 	}
-	loopLen := func(w *Waveform) float64 { return float64(w.Spans[0].Len - 2*w.Spans[0].Ramp) }
+	loopLen := func(w *waveform.Waveform) float64 { return float64(w.Spans[0].Len - 2*w.Spans[0].Ramp) }
 	for _, f := range []float64{2, 4} {
-		hw := testHardware(3, 10e6)
+		hw := wavetest.Hardware(3, 10e6)
 		hw.MinDuration = f * base.Duration()
-		w := mustBuild(t, tripodPlan(math.Pi/4, 0.05), hw)
+		w := wavetest.MustBuild(t, wavetest.TripodPlan(math.Pi/4, 0.05), hw)
 		a, err := w.MeasureAdiabaticity()
 		if err != nil {
 			t.Fatal(err)
@@ -196,7 +198,7 @@ func TestAdiabaticityInverseDuration(t *testing.T) {
 func TestDecayDarkVersusBright(t *testing.T) {
 	gamma := 2 * math.Pi * 1e5 // 1/s, small against the Rabi frequencies
 	// Bright: Λ gate. Time in e from the lossless populations.
-	lam := mustBuild(t, lambdaPlan(math.Pi/4, 0, hadamard()), testHardware(2, 10e6))
+	lam := wavetest.MustBuild(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6))
 	sim := NewSimulator(lam)
 	sim.TracePoints = lam.Len()
 	var out Outcome
@@ -211,16 +213,16 @@ func TestDecayDarkVersusBright(t *testing.T) {
 			timeInE += 0.5 * (p[i] + p[i-1]) * (out.Times[i] - out.Times[i-1]) / 2
 		}
 	}
-	lossy := mustVerify(t, lam, ErrorModel{Decay: gamma})
+	lossy := wavetest.Must(Verify(lam, ErrorModel{Decay: gamma}))(t)
 	want := gamma * timeInE
 	t.Logf("Λ: time in e %.4g s, loss %.5g, Γ·t_e = %.5g", timeInE, lossy.Leakage, want)
 	if r := lossy.Leakage / want; r < 0.95 || r > 1.05 {
 		t.Errorf("Λ gate loss %.4g is not Γ·t_e = %.4g (ratio %.3f)", lossy.Leakage, want, r)
 	}
 	// Dark: tripod gate, much longer, yet it loses far less.
-	tri := mustBuild(t, tripodPlan(math.Pi/4, 0.02), testHardware(3, 10e6))
-	tl := mustVerify(t, tri, ErrorModel{Decay: gamma})
-	t0 := mustVerify(t, tri, ErrorModel{})
+	tri := wavetest.MustBuild(t, wavetest.TripodPlan(math.Pi/4, 0.02), wavetest.Hardware(3, 10e6))
+	tl := wavetest.Must(Verify(tri, ErrorModel{Decay: gamma}))(t)
+	t0 := wavetest.Must(Verify(tri, ErrorModel{}))(t)
 	loss := tl.Leakage - t0.Leakage
 	t.Logf("tripod: duration %.4g s, extra loss %.4g, Γ·T = %.4g", tri.Duration(), loss, gamma*tri.Duration())
 	if loss > 0.01*gamma*tri.Duration() {
@@ -237,7 +239,7 @@ func TestDecayDarkVersusBright(t *testing.T) {
 // Horodecki, Horodecki and Horodecki, Phys. Rev. A 60, 1888 (1999); Nielsen,
 // Phys. Lett. A 303, 249 (2002)).
 func TestDephasingIdle(t *testing.T) {
-	w := mustBuild(t, lambdaPlan(math.Pi/4, 0, hadamard()), testHardware(2, 10e6))
+	w := wavetest.MustBuild(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6))
 	for c := range w.I {
 		for k := range w.I[c] {
 			w.I[c][k], w.Q[c][k], w.CodeI[c][k], w.CodeQ[c][k] = 0, 0, 0, 0
@@ -259,7 +261,7 @@ func TestDephasingIdle(t *testing.T) {
 // The density-matrix path without dephasing agrees with the state-vector
 // path, with and without decay.
 func TestLindbladMatchesUnitary(t *testing.T) {
-	w := mustBuild(t, lambdaPlan(math.Pi/3, 0.7, nDotSigma(math.Pi/3, 0.7)), testHardware(2, 10e6))
+	w := wavetest.MustBuild(t, wavetest.LambdaPlan(math.Pi/3, 0.7, wavetest.NDotSigma(math.Pi/3, 0.7)), wavetest.Hardware(2, 10e6))
 	for _, gamma := range []float64{0, 3e6} {
 		a, err := Simulate(w, ErrorModel{Decay: gamma, AmplitudeError: 0.03})
 		if err != nil {
@@ -287,7 +289,7 @@ func TestLindbladMatchesUnitary(t *testing.T) {
 // direction turns, is affected but stays good for a rise time well below
 // its time scales.
 func TestBandwidth(t *testing.T) {
-	lam := mustBuild(t, lambdaPlan(math.Pi/4, 0, hadamard()), testHardware(2, 10e6))
+	lam := wavetest.MustBuild(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6))
 	ideal, err := Simulate(lam, ErrorModel{Unquantized: true})
 	if err != nil {
 		t.Fatal(err)
@@ -299,7 +301,7 @@ func TestBandwidth(t *testing.T) {
 	if d := math.Abs(filt.Fidelity - ideal.Fidelity); d > 1e-8 {
 		t.Errorf("Λ gate with 5 ns rise time: F %.12f vs %.12f", filt.Fidelity, ideal.Fidelity)
 	}
-	tri := mustBuild(t, tripodPlan(math.Pi/4, 0.05), testHardware(3, 10e6))
+	tri := wavetest.MustBuild(t, wavetest.TripodPlan(math.Pi/4, 0.05), wavetest.Hardware(3, 10e6))
 	zoh, _ := Simulate(tri, ErrorModel{})
 	sharp, err := Simulate(tri, ErrorModel{RiseTime: 1e-12})
 	if err != nil {
@@ -321,7 +323,7 @@ func TestBandwidth(t *testing.T) {
 // The filter weights of every sub-step sum to one (a constant input stays
 // constant) and are those of Φ differences.
 func TestFilterKernel(t *testing.T) {
-	w := mustBuild(t, lambdaPlan(math.Pi/4, 0, hadamard()), testHardware(2, 10e6))
+	w := wavetest.MustBuild(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6))
 	s := NewSimulator(w)
 	s.setKernel(GaussianFilter, 3e-9, 8)
 	R := s.back
@@ -347,7 +349,7 @@ func TestFilterKernel(t *testing.T) {
 // Error-model detunings reach the right levels: a two-photon detuning δ on
 // |1⟩ with no drive gives the phase gate diag(1, e^{−iδT}).
 func TestTwoPhotonDetuningIdle(t *testing.T) {
-	w := mustBuild(t, lambdaPlan(math.Pi/4, 0, hadamard()), testHardware(2, 10e6))
+	w := wavetest.MustBuild(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6))
 	for c := range w.I {
 		for k := range w.I[c] {
 			w.I[c][k], w.Q[c][k], w.CodeI[c][k], w.CodeQ[c][k] = 0, 0, 0, 0
@@ -402,9 +404,9 @@ func TestSpinHalfBerryPhase(t *testing.T) {
 		if d := holonomy.FrobeniusDist(res.U, target); d > 1e-6 {
 			t.Fatalf("θ₀ = %g: Wilson loop %v differs from the Berry phases by %g", theta0, res.U, d)
 		}
-		p := &Plan{Scheme: sc, Target: target, Segments: []Segment{{Kind: Adiabatic, Shape: coneLoop(theta0)}}, Adiabaticity: 0.03}
-		w := mustBuild(t, p, testHardware(1, 10e6))
-		v := mustVerify(t, w, ErrorModel{})
+		p := &waveform.Plan{Scheme: sc, Target: target, Segments: []waveform.Segment{{Kind: waveform.Adiabatic, Shape: coneLoop(theta0)}}, Adiabaticity: 0.03}
+		w := wavetest.MustBuild(t, p, wavetest.Hardware(1, 10e6))
+		v := wavetest.Must(Verify(w, ErrorModel{}))(t)
 		t.Logf("θ₀ = %.3g: %d samples, F = %.9f, α = %.4g, detuning tracks on %v", theta0, w.Len(), v.Fidelity, v.Adiabaticity, w.Detuning[0] != nil)
 		if v.Fidelity < 0.9999 || !v.Pass() {
 			t.Errorf("θ₀ = %g: F = %.8f, failed %v", theta0, v.Fidelity, v.Failed())

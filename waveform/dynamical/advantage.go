@@ -1,4 +1,4 @@
-package waveform
+package dynamical
 
 import (
 	"context"
@@ -8,6 +8,9 @@ import (
 	"math/cmplx"
 
 	"github.com/loopgate/loopgate/holonomy"
+	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/robust"
+	"github.com/loopgate/loopgate/waveform/sim"
 )
 
 // DynamicalPulse is the decomposition of a single-qubit gate used by the
@@ -108,7 +111,7 @@ type Dynamical struct {
 	// Waveform is the sampled, quantised pulse on the two-level scheme.
 	// Its Target is R_z(ZAngle)†·U_target: evaluating the pulse against
 	// it is the same as evaluating pulse-then-virtual-z against U_target.
-	Waveform *Waveform
+	Waveform *waveform.Waveform
 	// Pulse is the decomposition of the target.
 	Pulse DynamicalPulse
 	// Channel is the index of the geometric gate's channel whose Rabi
@@ -147,7 +150,7 @@ func (d *Dynamical) String() string {
 // A diagonal target (θ = 0, e.g. Z, S, T) needs no pulse at all: the
 // dynamical gate is then a waveform of zero samples, and its fidelity is 1
 // under every error of the sweep axes.
-func NewDynamical(geo *Waveform) (*Dynamical, error) {
+func NewDynamical(geo *waveform.Waveform) (*Dynamical, error) {
 	sc := geo.Scheme
 	if len(sc.Computational) != 2 {
 		return nil, fmt.Errorf("dynamical gate: the geometric gate acts on %d levels; the comparison needs a qubit", len(sc.Computational))
@@ -162,7 +165,7 @@ func NewDynamical(geo *Waveform) (*Dynamical, error) {
 			best = c
 		}
 	}
-	hw := geo.Hardware.clone()
+	hw := geo.Hardware.Clone()
 	hw.MaxRabi = []float64{geo.Hardware.MaxRabi[best]}
 	hw.FullScale = []float64{geo.Hardware.FullScale[best]}
 	q := &holonomy.Scheme{
@@ -184,17 +187,17 @@ func NewDynamical(geo *Waveform) (*Dynamical, error) {
 		return d, nil
 	}
 	drive := cmplx.Rect(1, pulse.Phase)
-	plan := &Plan{
+	plan := &waveform.Plan{
 		Scheme: q,
 		Target: target,
-		Segments: []Segment{{
-			Kind:  Cyclic,
+		Segments: []waveform.Segment{{
+			Kind:  waveform.Cyclic,
 			Shape: func(_ float64, p holonomy.Point) { p.Drive[0] = drive },
 			Area:  pulse.Area,
 		}},
 		MinFidelity: geo.MinFidelity,
 	}
-	w, err := Build(plan, hw)
+	w, err := waveform.Build(plan, hw)
 	if err != nil {
 		return nil, fmt.Errorf("dynamical gate: %w", err)
 	}
@@ -204,9 +207,9 @@ func NewDynamical(geo *Waveform) (*Dynamical, error) {
 
 // emptyWaveform returns a waveform of zero samples on the one-channel
 // scheme q: the dynamical gate of a diagonal target.
-func emptyWaveform(q *holonomy.Scheme, target *holonomy.Mat, hw Hardware, minF float64) *Waveform {
-	sc, hz := CanonScheme(q)
-	return &Waveform{
+func emptyWaveform(q *holonomy.Scheme, target *holonomy.Mat, hw waveform.Hardware, minF float64) *waveform.Waveform {
+	sc, hz := waveform.CanonScheme(q)
+	return &waveform.Waveform{
 		Scheme:      sc,
 		Target:      target,
 		Hardware:    hw,
@@ -224,11 +227,11 @@ func emptyWaveform(q *holonomy.Scheme, target *holonomy.Mat, hw Hardware, minF f
 // error axis.
 type AdvantageRow struct {
 	// Axis is the error axis.
-	Axis Axis
+	Axis robust.Axis
 	// Geometric and Dynamical are the robust regions of the two gates
 	// (fidelity ≥ the comparison's threshold), edges refined by
 	// simulation.
-	Geometric, Dynamical Width
+	Geometric, Dynamical robust.Width
 	// Ratio is Geometric.Width/Dynamical.Width: above 1 the geometric
 	// gate tolerates a larger error. It is +Inf when only the dynamical
 	// width is zero and NaN when both are.
@@ -248,7 +251,7 @@ type Comparison struct {
 	Rows []AdvantageRow
 	// Geometric and DynamicalSweeps hold the sweeps of the two gates over
 	// the given ranges, in the same order.
-	Geometric, DynamicalSweeps []*Sweep
+	Geometric, DynamicalSweeps []*robust.Sweep
 }
 
 // Compare builds the dynamical gate for geo (NewDynamical), sweeps both
@@ -272,7 +275,7 @@ type Comparison struct {
 // q* = √(1 − threshold), to a relative tolerance of 1e-6. Simulations run
 // in parallel as in SweepAxis and the result does not depend on the
 // number of workers.
-func Compare(ctx context.Context, geo *Waveform, ranges []Range, opt *SweepOptions) (*Comparison, error) {
+func Compare(ctx context.Context, geo *waveform.Waveform, ranges []robust.Range, opt *robust.SweepOptions) (*Comparison, error) {
 	if len(ranges) == 0 {
 		return nil, errors.New("geometric advantage: no error axes given")
 	}
@@ -280,44 +283,44 @@ func Compare(ctx context.Context, geo *Waveform, ranges []Range, opt *SweepOptio
 		if err := r.Validate(); err != nil {
 			return nil, fmt.Errorf("geometric advantage: %w", err)
 		}
-		if r.Axis == OnePhotonAxis {
-			return nil, fmt.Errorf("geometric advantage: %s has no counterpart for a directly driven qubit; compare along %s and %s", r.Axis, AmplitudeAxis, TwoPhotonAxis)
+		if r.Axis == robust.OnePhotonAxis {
+			return nil, fmt.Errorf("geometric advantage: %s has no counterpart for a directly driven qubit; compare along %s and %s", r.Axis, robust.AmplitudeAxis, robust.TwoPhotonAxis)
 		}
 	}
 	dyn, err := NewDynamical(geo)
 	if err != nil {
 		return nil, fmt.Errorf("geometric advantage: %w", err)
 	}
-	thr := opt.threshold()
+	thr := opt.EffectiveThreshold()
 	if !(thr > 0 && thr < 1) {
 		return nil, fmt.Errorf("geometric advantage: threshold %v; need a fidelity between 0 and 1", thr)
 	}
-	baseGeo := opt.base()
+	baseGeo := opt.BaseModel()
 	baseDyn := baseGeo
 	baseDyn.ChannelErrors = nil
-	gates := [2]*Waveform{geo, dyn.Waveform}
-	bases := [2]ErrorModel{baseGeo, baseDyn}
+	gates := [2]*waveform.Waveform{geo, dyn.Waveform}
+	bases := [2]sim.ErrorModel{baseGeo, baseDyn}
 
 	cmp := &Comparison{Threshold: thr, Dynamical: dyn}
 	// All sweep points of both gates as one parallel job list.
 	type point struct{ gate, sweep, k int }
 	var pts []point
-	sw := [2][]*Sweep{}
+	sw := [2][]*robust.Sweep{}
 	for g := range gates {
 		for i, r := range ranges {
 			x := r.Values()
-			sw[g] = append(sw[g], &Sweep{Axis: r.Axis, X: x, Fidelity: make([]float64, len(x)), Leakage: make([]float64, len(x))})
+			sw[g] = append(sw[g], &robust.Sweep{Axis: r.Axis, X: x, Fidelity: make([]float64, len(x)), Leakage: make([]float64, len(x))})
 			for k := range x {
 				pts = append(pts, point{g, i, k})
 			}
 		}
 	}
-	err = runJobs(ctx, len(pts), opt, "geometric advantage: sweeps", func(wk *robustWorker, j int) error {
+	err = robust.RunJobs(ctx, len(pts), opt, "geometric advantage: sweeps", func(wk *robust.Worker, j int) error {
 		p := pts[j]
 		s := sw[p.gate][p.sweep]
 		m := bases[p.gate]
-		s.Axis.set(&m, s.X[p.k])
-		out, err := wk.run(gates[p.gate], m)
+		s.Axis.Set(&m, s.X[p.k])
+		out, err := wk.Run(gates[p.gate], m)
 		if err != nil {
 			return err
 		}
@@ -330,7 +333,7 @@ func Compare(ctx context.Context, geo *Waveform, ranges []Range, opt *SweepOptio
 	cmp.Geometric, cmp.DynamicalSweeps = sw[0], sw[1]
 
 	// Edge refinement: one job per gate, range and side.
-	widths := make([]Width, 2*len(ranges)) // gate g, range i at g*len(ranges)+i
+	widths := make([]robust.Width, 2*len(ranges)) // gate g, range i at g*len(ranges)+i
 	type edge struct{ gate, sweep, side int }
 	var edges []edge
 	for g := range gates {
@@ -340,10 +343,10 @@ func Compare(ctx context.Context, geo *Waveform, ranges []Range, opt *SweepOptio
 			}
 		}
 	}
-	res := make([]edgeResult, len(edges))
-	err = runJobs(ctx, len(edges), opt, "geometric advantage: edges", func(wk *robustWorker, j int) error {
+	res := make([]robust.Edge, len(edges))
+	err = robust.RunJobs(ctx, len(edges), opt, "geometric advantage: edges", func(wk *robust.Worker, j int) error {
 		e := edges[j]
-		r, err := findEdge(ctx, wk, gates[e.gate], bases[e.gate], ranges[e.sweep], sw[e.gate][e.sweep], e.side, thr)
+		r, err := robust.FindEdge(ctx, wk, gates[e.gate], bases[e.gate], ranges[e.sweep], sw[e.gate][e.sweep], e.side, thr)
 		if err != nil {
 			return err
 		}
@@ -356,15 +359,15 @@ func Compare(ctx context.Context, geo *Waveform, ranges []Range, opt *SweepOptio
 	for j, e := range edges {
 		w := &widths[e.gate*len(ranges)+e.sweep]
 		if e.side == 0 {
-			w.Low, w.LowOpen = res[j].x, res[j].open
+			w.Low, w.LowOpen = res[j].X, res[j].Open
 		} else {
-			w.High, w.HighOpen = res[j].x, res[j].open
+			w.High, w.HighOpen = res[j].X, res[j].Open
 		}
 	}
 	// A fidelity below the threshold at zero error leaves no region.
 	for j, e := range edges {
-		if res[j].zero {
-			widths[e.gate*len(ranges)+e.sweep] = Width{}
+		if res[j].Zero {
+			widths[e.gate*len(ranges)+e.sweep] = robust.Width{}
 		}
 	}
 	for i, r := range ranges {
@@ -386,7 +389,7 @@ func Compare(ctx context.Context, geo *Waveform, ranges []Range, opt *SweepOptio
 }
 
 // advantageNote explains open edges and the pulse-free dynamical gate.
-func advantageNote(g, d Width, dyn *Dynamical) string {
+func advantageNote(g, d robust.Width, dyn *Dynamical) string {
 	var notes []string
 	if dyn.Pulse.Area < 1e-12 {
 		notes = append(notes, "the target is diagonal: the dynamical gate is a virtual z rotation without any pulse, unaffected by these errors")

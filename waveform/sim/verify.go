@@ -1,7 +1,9 @@
-package waveform
+package sim
 
 import (
 	"math"
+
+	"github.com/loopgate/loopgate/waveform"
 )
 
 // Verification is the outcome of Verify: the simulated figures of merit
@@ -18,7 +20,7 @@ type Verification struct {
 	Adiabaticity float64
 	// Checks lists the fidelity goal, the adiabaticity goal (adiabatic
 	// segments only) and the hardware checks, in that order.
-	Checks []Check
+	Checks []waveform.Check
 }
 
 // Pass reports whether every check passes.
@@ -71,8 +73,8 @@ func (v *Verification) Same(o *Verification) bool {
 }
 
 // Failed returns the checks that fail.
-func (v *Verification) Failed() []Check {
-	var out []Check
+func (v *Verification) Failed() []waveform.Check {
+	var out []waveform.Check
 	for _, c := range v.Checks {
 		if !c.Pass {
 			out = append(out, c)
@@ -86,7 +88,7 @@ func (v *Verification) Failed() []Check {
 // check is not an error: the caller inspects Pass and must not use a
 // waveform that fails. Errors are reserved for an invalid model or a
 // waveform whose adiabaticity cannot be measured.
-func Verify(w *Waveform, m ErrorModel) (*Verification, error) {
+func Verify(w *waveform.Waveform, m ErrorModel) (*Verification, error) {
 	out := new(Outcome)
 	if err := NewSimulator(w).Run(m, out); err != nil {
 		return nil, err
@@ -106,9 +108,9 @@ func Verify(w *Waveform, m ErrorModel) (*Verification, error) {
 	if m.ChannelErrors != nil {
 		v.Model.ChannelErrors = append([]float64(nil), m.ChannelErrors...)
 	}
-	v.Checks = append(v.Checks, NewCheck("fidelity", out.Fidelity, w.MinFidelity, "", boundMin))
+	v.Checks = append(v.Checks, waveform.NewCheck("fidelity", out.Fidelity, w.MinFidelity, "", waveform.BoundMin))
 	if !math.IsNaN(alpha) {
-		v.Checks = append(v.Checks, NewCheck("adiabaticity", alpha, w.Adiabaticity, "", boundMax))
+		v.Checks = append(v.Checks, waveform.NewCheck("adiabaticity", alpha, w.Adiabaticity, "", waveform.BoundMax))
 	}
 	v.Checks = append(v.Checks, w.HardwareChecks()...)
 	return v, nil

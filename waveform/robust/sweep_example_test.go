@@ -1,4 +1,4 @@
-package waveform_test
+package robust_test
 
 import (
 	"context"
@@ -8,6 +8,9 @@ import (
 
 	"github.com/loopgate/loopgate/holonomy"
 	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/dynamical"
+	"github.com/loopgate/loopgate/waveform/robust"
+	"github.com/loopgate/loopgate/waveform/sim"
 )
 
 // An X gate on a Λ scheme by one resonant pulse of area 2π (the
@@ -40,8 +43,8 @@ func ExampleSweepAxis() {
 		log.Fatal(err)
 	}
 	ctx := context.Background()
-	opt := &waveform.SweepOptions{Base: waveform.ErrorModel{Unquantized: true}}
-	s, err := waveform.SweepAxis(ctx, w, waveform.Range{Axis: waveform.AmplitudeAxis, Min: -0.03, Max: 0.03, Points: 7}, opt)
+	opt := &robust.SweepOptions{Base: sim.ErrorModel{Unquantized: true}}
+	s, err := robust.SweepAxis(ctx, w, robust.Range{Axis: robust.AmplitudeAxis, Min: -0.03, Max: 0.03, Points: 7}, opt)
 	if err != nil {
 		log.Fatal(err)
 	}
@@ -51,7 +54,7 @@ func ExampleSweepAxis() {
 	wd := s.Width(0.999)
 	fmt.Printf("F ≥ 0.999 for ε from %.4f to %.4f (interpolated)\n", wd.Low, wd.High)
 
-	cmp, err := waveform.Compare(ctx, w, []waveform.Range{{Axis: waveform.AmplitudeAxis, Min: -0.03, Max: 0.03, Points: 7}}, opt)
+	cmp, err := dynamical.Compare(ctx, w, []robust.Range{{Axis: robust.AmplitudeAxis, Min: -0.03, Max: 0.03, Points: 7}}, opt)
 	if err != nil {
 		log.Fatal(err)
 	}
@@ -67,18 +70,4 @@ func ExampleSweepAxis() {
 	// ε = +0.03  F = 0.99557
 	// F ≥ 0.999 for ε from -0.0142 to 0.0142 (interpolated)
 	// amplitude error ε: Λ gate ±0.0142, dynamical gate ±0.0247, ratio 0.58
-}
-
-// The plain dynamical gate for a Hadamard target: one resonant pulse and a
-// virtual z rotation.
-func ExampleDecomposeQubit() {
-	r := complex(1/math.Sqrt2, 0)
-	h := holonomy.NewMatFrom(2, 2, []complex128{r, r, r, -r})
-	p, err := waveform.DecomposeQubit(h)
-	if err != nil {
-		log.Fatal(err)
-	}
-	fmt.Println(p)
-	// Output:
-	// resonant pulse of area 0.5π and phase -0.5π, then a virtual z rotation by 1π
 }

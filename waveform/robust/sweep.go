@@ -1,16 +1,19 @@
-package waveform
+package robust
 
 import (
 	"context"
 	"errors"
 	"fmt"
-	"github.com/loopgate/loopgate/holonomy"
 	"io"
 	"math"
 	"runtime"
 	"strings"
 	"sync"
 	"sync/atomic"
+
+	"github.com/loopgate/loopgate/holonomy"
+	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/sim"
 )
 
 // DefaultThreshold is the fidelity that defines the robust region of a
@@ -63,7 +66,7 @@ func (a Axis) Unit() string {
 }
 
 // set writes v into the field of m that the axis sweeps.
-func (a Axis) set(m *ErrorModel, v float64) {
+func (a Axis) Set(m *sim.ErrorModel, v float64) {
 	switch a {
 	case AmplitudeAxis:
 		m.AmplitudeError = v
@@ -145,7 +148,7 @@ type SweepOptions struct {
 	// Base is the error model the swept axes modify: each grid point uses
 	// Base with the swept fields replaced by the grid values. The zero
 	// value is the ideal model of the quantised waveform.
-	Base ErrorModel
+	Base sim.ErrorModel
 	// Workers is the number of goroutines, each with its own simulation
 	// workspace; 0 means runtime.GOMAXPROCS(0). Results do not depend on
 	// it: every simulation writes into its own slot.
@@ -170,16 +173,16 @@ func (o *SweepOptions) workers() int {
 	return runtime.GOMAXPROCS(0)
 }
 
-func (o *SweepOptions) threshold() float64 {
+func (o *SweepOptions) EffectiveThreshold() float64 {
 	if o != nil && o.Threshold > 0 {
 		return o.Threshold
 	}
 	return DefaultThreshold
 }
 
-func (o *SweepOptions) base() ErrorModel {
+func (o *SweepOptions) BaseModel() sim.ErrorModel {
 	if o == nil {
-		return ErrorModel{}
+		return sim.ErrorModel{}
 	}
 	return o.Base
 }
@@ -210,17 +213,17 @@ type ErrorMap struct {
 // options' base model) in parallel and returns the fidelity curve. It
 // honours ctx: on cancellation it stops within one simulation per worker
 // and returns an error wrapping ctx.Err().
-func SweepAxis(ctx context.Context, w *Waveform, r Range, opt *SweepOptions) (*Sweep, error) {
+func SweepAxis(ctx context.Context, w *waveform.Waveform, r Range, opt *SweepOptions) (*Sweep, error) {
 	if err := r.Validate(); err != nil {
 		return nil, fmt.Errorf("robustness sweep: %w", err)
 	}
 	x := r.Values()
 	s := &Sweep{Axis: r.Axis, X: x, Fidelity: make([]float64, len(x)), Leakage: make([]float64, len(x))}
-	base := opt.base()
-	err := runJobs(ctx, len(x), opt, "sweep "+r.Axis.String(), func(wk *robustWorker, k int) error {
+	base := opt.BaseModel()
+	err := RunJobs(ctx, len(x), opt, "sweep "+r.Axis.String(), func(wk *Worker, k int) error {
 		m := base
-		r.Axis.set(&m, x[k])
-		out, err := wk.run(w, m)
+		r.Axis.Set(&m, x[k])
+		out, err := wk.Run(w, m)
 		if err != nil {
 			return err
 		}
@@ -235,7 +238,7 @@ func SweepAxis(ctx context.Context, w *Waveform, r Range, opt *SweepOptions) (*S
 
 // SweepMap simulates w on the grid x × y (the two axes must differ) in
 // parallel and returns the map. Cancellation works as in SweepAxis.
-func SweepMap(ctx context.Context, w *Waveform, x, y Range, opt *SweepOptions) (*ErrorMap, error) {
+func SweepMap(ctx context.Context, w *waveform.Waveform, x, y Range, opt *SweepOptions) (*ErrorMap, error) {
 	if err := x.Validate(); err != nil {
 		return nil, fmt.Errorf("robustness map: horizontal axis: %w", err)
 	}
@@ -252,12 +255,12 @@ func SweepMap(ctx context.Context, w *Waveform, x, y Range, opt *SweepOptions) (
 	for i := range em.Fidelity {
 		em.Fidelity[i] = flat[i*nx : (i+1)*nx : (i+1)*nx]
 	}
-	base := opt.base()
-	err := runJobs(ctx, nx*ny, opt, "robustness map", func(wk *robustWorker, k int) error {
+	base := opt.BaseModel()
+	err := RunJobs(ctx, nx*ny, opt, "robustness map", func(wk *Worker, k int) error {
 		m := base
-		x.Axis.set(&m, em.X[k%nx])
-		y.Axis.set(&m, em.Y[k/nx])
-		out, err := wk.run(w, m)
+		x.Axis.Set(&m, em.X[k%nx])
+		y.Axis.Set(&m, em.Y[k/nx])
+		out, err := wk.Run(w, m)
 		if err != nil {
 			return err
 		}
@@ -370,23 +373,23 @@ func crossing(xa, xb, fa, fb, qt float64) float64 {
 // robustWorker is one goroutine's simulation workspace: a Simulator per
 // waveform (created on first use, then reused without allocation) and an
 // Outcome.
-type robustWorker struct {
-	sims map[*Waveform]*Simulator
-	out  Outcome
+type Worker struct {
+	sims map[*waveform.Waveform]*sim.Simulator
+	out  sim.Outcome
 }
 
 // run simulates w under m with the worker's workspace. The returned
 // Outcome is overwritten by the next run.
-func (wk *robustWorker) run(w *Waveform, m ErrorModel) (*Outcome, error) {
-	sim := wk.sims[w]
-	if sim == nil {
-		sim = NewSimulator(w)
+func (wk *Worker) Run(w *waveform.Waveform, m sim.ErrorModel) (*sim.Outcome, error) {
+	s := wk.sims[w]
+	if s == nil {
+		s = sim.NewSimulator(w)
 		if wk.sims == nil {
-			wk.sims = make(map[*Waveform]*Simulator)
+			wk.sims = make(map[*waveform.Waveform]*sim.Simulator)
 		}
-		wk.sims[w] = sim
+		wk.sims[w] = s
 	}
-	if err := sim.Run(m, &wk.out); err != nil {
+	if err := s.Run(m, &wk.out); err != nil {
 		return nil, err
 	}
 	return &wk.out, nil
@@ -400,7 +403,7 @@ var errStop = errors.New("stopped")
 // progress, stops early on cancellation or on the first failure, and
 // returns the error of the lowest failing index among the jobs that ran,
 // or the context's error.
-func runJobs(ctx context.Context, n int, opt *SweepOptions, label string, job func(wk *robustWorker, k int) error) error {
+func RunJobs(ctx context.Context, n int, opt *SweepOptions, label string, job func(wk *Worker, k int) error) error {
 	if n == 0 {
 		return nil
 	}
@@ -418,7 +421,7 @@ func runJobs(ctx context.Context, n int, opt *SweepOptions, label string, job fu
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			wk := new(robustWorker)
+			wk := new(Worker)
 			for {
 				if failed.Load() || ctx.Err() != nil {
 					return

@@ -1,4 +1,4 @@
-package waveform
+package dynamical
 
 import (
 	"context"
@@ -8,6 +8,10 @@ import (
 	"testing"
 
 	"github.com/loopgate/loopgate/holonomy"
+	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/internal/wavetest"
+	"github.com/loopgate/loopgate/waveform/robust"
+	"github.com/loopgate/loopgate/waveform/sim"
 )
 
 // rbPhaseDistance returns min over global phases of ‖a − e^{iχ}b‖_F.
@@ -84,13 +88,13 @@ func TestAdvantageDynamicalGate(t *testing.T) {
 	r := 1 / math.Sqrt2
 	targets := map[string]*holonomy.Mat{
 		"H":   holonomy.NewMatFrom(2, 2, []complex128{complex(r, 0), complex(r, 0), complex(r, 0), complex(-r, 0)}),
-		"Ry":  rotation(math.Pi / 4),
+		"Ry":  wavetest.Rotation(math.Pi / 4),
 		"X":   holonomy.NewMatFrom(2, 2, []complex128{0, 1, 1, 0}),
 		"T":   holonomy.NewMatFrom(2, 2, []complex128{1, 0, 0, cmplx.Rect(1, math.Pi/4)}),
 		"rnd": DynamicalPulse{Area: 2.1, Phase: -0.7, ZAngle: 1.3}.Unitary(),
 	}
 	for name, u := range targets {
-		geo := rbLambda(t, math.Pi/2, 0)
+		geo := wavetest.RobustLambda(t, math.Pi/2, 0)
 		geo.Target = u
 		d, err := NewDynamical(geo)
 		if err != nil {
@@ -101,7 +105,7 @@ func TestAdvantageDynamicalGate(t *testing.T) {
 			if dw.Len() != 0 {
 				t.Errorf("T: diagonal target needs no pulse, got %d samples", dw.Len())
 			}
-			out, err := Simulate(dw, ErrorModel{AmplitudeError: 0.2, TwoPhotonDetuning: 1e6})
+			out, err := sim.Simulate(dw, sim.ErrorModel{AmplitudeError: 0.2, TwoPhotonDetuning: 1e6})
 			if err != nil || math.Abs(1-out.Fidelity) > 1e-15 {
 				t.Errorf("T: frame change alone should be exact: %v, %v", out, err)
 			}
@@ -110,7 +114,7 @@ func TestAdvantageDynamicalGate(t *testing.T) {
 			t.Errorf("%s: peak Rabi %v Hz above the limit", name, peak)
 		}
 		for _, eps := range []float64{0, 0.03, -0.05} {
-			out, err := Simulate(dw, ErrorModel{Unquantized: true, AmplitudeError: eps})
+			out, err := sim.Simulate(dw, sim.ErrorModel{Unquantized: true, AmplitudeError: eps})
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -149,13 +153,13 @@ func rbFitExponent(x, y []float64) float64 {
 // The test measures the exponent by a log-log fit over small ε (both
 // signs) and compares every point with the closed form.
 func TestAdvantageLambdaAreaErrorQuadratic(t *testing.T) {
-	w := rbLambda(t, math.Pi/3, 0.4)
+	w := wavetest.RobustLambda(t, math.Pi/3, 0.4)
 	eps := []float64{-0.016, -0.008, -0.004, -0.002, -0.001, 0.001, 0.002, 0.004, 0.008, 0.016}
-	sim := NewSimulator(w)
-	out := new(Outcome)
+	sm := sim.NewSimulator(w)
+	out := new(sim.Outcome)
 	var ax, ay []float64
 	for _, e := range eps {
-		if err := sim.Run(ErrorModel{Unquantized: true, AmplitudeError: e}, out); err != nil {
+		if err := sm.Run(sim.ErrorModel{Unquantized: true, AmplitudeError: e}, out); err != nil {
 			t.Fatal(err)
 		}
 		inf := 1 - out.Fidelity
@@ -189,19 +193,19 @@ func TestAdvantageLambdaAreaErrorQuadratic(t *testing.T) {
 // bound is well below the error a dynamical rotation of the same angle
 // would show at the same ε.
 func TestAdvantageTripodCommonScale(t *testing.T) {
-	w := rbTripod(t, math.Pi/2, 0.02, 20e6)
+	w := wavetest.RobustTripod(t, math.Pi/2, 0.02, 20e6)
 	alpha, err := w.MeasureAdiabaticity()
 	if err != nil {
 		t.Fatal(err)
 	}
-	sim := NewSimulator(w)
-	out := new(Outcome)
-	if err := sim.Run(ErrorModel{Unquantized: true}, out); err != nil {
+	sm := sim.NewSimulator(w)
+	out := new(sim.Outcome)
+	if err := sm.Run(sim.ErrorModel{Unquantized: true}, out); err != nil {
 		t.Fatal(err)
 	}
 	f0 := out.Fidelity
 	for _, e := range []float64{-0.05, 0.05} {
-		if err := sim.Run(ErrorModel{Unquantized: true, AmplitudeError: e}, out); err != nil {
+		if err := sm.Run(sim.ErrorModel{Unquantized: true, AmplitudeError: e}, out); err != nil {
 			t.Fatal(err)
 		}
 		bound := math.Pow(alpha/(1+e), 2)
@@ -222,7 +226,7 @@ func TestAdvantageTripodCommonScale(t *testing.T) {
 // the tripod holonomy's, which is insensitive to a common scale. The
 // tripod's prefactor is measured as max |F(ε) − F(0)|/ε² over the same ε.
 func TestAdvantageDynamicalPrefactor(t *testing.T) {
-	geo := rbTripod(t, math.Pi/2, 0.02, 20e6)
+	geo := wavetest.RobustTripod(t, math.Pi/2, 0.02, 20e6)
 	dyn, err := NewDynamical(geo)
 	if err != nil {
 		t.Fatal(err)
@@ -233,15 +237,15 @@ func TestAdvantageDynamicalPrefactor(t *testing.T) {
 		all = append(all, -e, e)
 	}
 	all = append(all, 0)
-	base := ErrorModel{Unquantized: true}
-	var sw [2]*Sweep
-	for g, w := range []*Waveform{geo, dyn.Waveform} {
-		s := &Sweep{Axis: AmplitudeAxis, X: all}
-		wk := new(robustWorker)
+	base := sim.ErrorModel{Unquantized: true}
+	var sw [2]*robust.Sweep
+	for g, w := range []*waveform.Waveform{geo, dyn.Waveform} {
+		s := &robust.Sweep{Axis: robust.AmplitudeAxis, X: all}
+		wk := new(robust.Worker)
 		for _, x := range all {
 			m := base
 			m.AmplitudeError = x
-			out, err := wk.run(w, m)
+			out, err := wk.Run(w, m)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -249,7 +253,7 @@ func TestAdvantageDynamicalPrefactor(t *testing.T) {
 		}
 		sw[g] = s
 	}
-	prefactor := func(s *Sweep) (exp, pref float64) {
+	prefactor := func(s *robust.Sweep) (exp, pref float64) {
 		f0 := s.Fidelity[len(s.Fidelity)-1]
 		var ax, ay []float64
 		for i, x := range s.X[:len(s.X)-1] {
@@ -278,13 +282,13 @@ func TestAdvantageDynamicalPrefactor(t *testing.T) {
 // more robust (Duan, Cirac and Zoller 2001); the detuning result is only
 // reported.
 func TestAdvantageCompareTripod(t *testing.T) {
-	geo := rbTripod(t, math.Pi/4, 0.05, 20e6)
-	ranges := []Range{
-		{Axis: AmplitudeAxis, Min: -0.1, Max: 0.1, Points: 11},
-		{Axis: TwoPhotonAxis, Min: -50e3, Max: 50e3, Points: 11},
+	geo := wavetest.RobustTripod(t, math.Pi/4, 0.05, 20e6)
+	ranges := []robust.Range{
+		{Axis: robust.AmplitudeAxis, Min: -0.1, Max: 0.1, Points: 11},
+		{Axis: robust.TwoPhotonAxis, Min: -50e3, Max: 50e3, Points: 11},
 	}
-	base := ErrorModel{Unquantized: true}
-	cmp, err := Compare(context.Background(), geo, ranges, &SweepOptions{Base: base})
+	base := sim.ErrorModel{Unquantized: true}
+	cmp, err := Compare(context.Background(), geo, ranges, &robust.SweepOptions{Base: base})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -293,7 +297,7 @@ func TestAdvantageCompareTripod(t *testing.T) {
 		t.Logf("%v: geometric [%.6g, %.6g] (open %v %v), dynamical [%.6g, %.6g] (open %v %v), ratio %.4g; %s",
 			r.Axis, r.Geometric.Low, r.Geometric.High, r.Geometric.LowOpen, r.Geometric.HighOpen,
 			r.Dynamical.Low, r.Dynamical.High, r.Dynamical.LowOpen, r.Dynamical.HighOpen, r.Ratio, r.Note)
-		for g, w := range map[*Waveform]Width{geo: r.Geometric, cmp.Dynamical.Waveform: r.Dynamical} {
+		for g, w := range map[*waveform.Waveform]robust.Width{geo: r.Geometric, cmp.Dynamical.Waveform: r.Dynamical} {
 			for _, e := range []struct {
 				x    float64
 				open bool
@@ -302,8 +306,8 @@ func TestAdvantageCompareTripod(t *testing.T) {
 					continue
 				}
 				m := base
-				r.Axis.set(&m, e.x)
-				out, err := Simulate(g, m)
+				r.Axis.Set(&m, e.x)
+				out, err := sim.Simulate(g, m)
 				if err != nil {
 					t.Fatal(err)
 				}
@@ -322,7 +326,7 @@ func TestAdvantageCompareTripod(t *testing.T) {
 	if !(amp.Ratio > 1) {
 		t.Errorf("amplitude axis: geometric width %v not above dynamical %v", amp.Geometric.Width, amp.Dynamical.Width)
 	}
-	if _, err := Compare(context.Background(), geo, []Range{{Axis: OnePhotonAxis, Min: -1, Max: 1, Points: 3}}, nil); err == nil {
+	if _, err := Compare(context.Background(), geo, []robust.Range{{Axis: robust.OnePhotonAxis, Min: -1, Max: 1, Points: 3}}, nil); err == nil {
 		t.Error("one-photon axis: no error")
 	}
 }

@@ -1,8 +1,11 @@
-package waveform
+package robust
 
 import (
 	"context"
 	"math"
+
+	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/sim"
 )
 
 // Edge searches beyond the swept range extend at most this many times the
@@ -15,23 +18,23 @@ const (
 )
 
 // edgeResult is one refined edge.
-type edgeResult struct {
-	x    float64
-	open bool
-	zero bool // the fidelity at zero error is below the threshold
+type Edge struct {
+	X    float64
+	Open bool
+	Zero bool // the fidelity at zero error is below the threshold
 }
 
 // findEdge locates the edge of the robust region of w on one side
 // (0: negative, 1: positive) of zero along r.Axis (method in Compare).
-func findEdge(ctx context.Context, wk *robustWorker, w *Waveform, base ErrorModel, r Range, s *Sweep, side int, thr float64) (edgeResult, error) {
+func FindEdge(ctx context.Context, wk *Worker, w *waveform.Waveform, base sim.ErrorModel, r Range, s *Sweep, side int, thr float64) (Edge, error) {
 	qt := math.Sqrt(1 - thr)
 	eval := func(x float64) (float64, error) {
 		if err := ctx.Err(); err != nil {
 			return 0, err
 		}
 		m := base
-		r.Axis.set(&m, x)
-		out, err := wk.run(w, m)
+		r.Axis.Set(&m, x)
+		out, err := wk.Run(w, m)
 		if err != nil {
 			return 0, err
 		}
@@ -40,7 +43,7 @@ func findEdge(ctx context.Context, wk *robustWorker, w *Waveform, base ErrorMode
 	x, f := s.X, s.Fidelity
 	i0 := nearestZero(x)
 	if !(f[i0] >= thr) {
-		return edgeResult{zero: true}, nil
+		return Edge{Zero: true}, nil
 	}
 	dir := 1
 	if side == 0 {
@@ -80,13 +83,13 @@ func findEdge(ctx context.Context, wk *robustWorker, w *Waveform, base ErrorMode
 		}
 		for {
 			if d >= limit {
-				return edgeResult{x: a, open: true}, nil
+				return Edge{X: a, Open: true}, nil
 			}
 			d = math.Min(2*d, limit)
 			xb := float64(dir) * d
 			g, err := eval(xb)
 			if err != nil {
-				return edgeResult{}, err
+				return Edge{}, err
 			}
 			if g > 0 {
 				b, gb = xb, g
@@ -110,7 +113,7 @@ func findEdge(ctx context.Context, wk *robustWorker, w *Waveform, base ErrorMode
 		}
 		gc, err := eval(c)
 		if err != nil {
-			return edgeResult{}, err
+			return Edge{}, err
 		}
 		if gc > 0 {
 			b, gb = c, gc
@@ -127,9 +130,9 @@ func findEdge(ctx context.Context, wk *robustWorker, w *Waveform, base ErrorMode
 		}
 	}
 	if gb == ga {
-		return edgeResult{x: a}, nil
+		return Edge{X: a}, nil
 	}
 	c := a - ga*(b-a)/(gb-ga)
 	c = math.Max(math.Min(a, b), math.Min(math.Max(a, b), c))
-	return edgeResult{x: c}, nil
+	return Edge{X: c}, nil
 }

@@ -1,19 +1,22 @@
-package waveform
+package robust
 
 import (
 	"context"
 	"math"
 	"strings"
 	"testing"
+
+	"github.com/loopgate/loopgate/waveform/internal/wavetest"
+	"github.com/loopgate/loopgate/waveform/sim"
 )
 
 // TestBudgetLines checks the error budget of a Λ gate: the lines present,
 // that every line is its documented simulation, the amplitude line against
 // the closed form of TestAdvantageLambdaAreaErrorQuadratic, and the total.
 func TestBudgetLines(t *testing.T) {
-	w := rbLambda(t, math.Pi/2, 0)
-	m := ErrorModel{AmplitudeError: 0.01, TwoPhotonDetuning: 20e3, Decay: 1e5, Dephasing: 2e3, RiseTime: 1.5e-9,
-		Filter: FirstOrderFilter, PhaseStep: 2 * math.Pi / 1024}
+	w := wavetest.RobustLambda(t, math.Pi/2, 0)
+	m := sim.ErrorModel{AmplitudeError: 0.01, TwoPhotonDetuning: 20e3, Decay: 1e5, Dephasing: 2e3, RiseTime: 1.5e-9,
+		Filter: sim.FirstOrderFilter, PhaseStep: 2 * math.Pi / 1024}
 	rows, err := Budget(context.Background(), w, m, &SweepOptions{Workers: 3})
 	if err != nil {
 		t.Fatal(err)
@@ -37,22 +40,22 @@ func TestBudgetLines(t *testing.T) {
 			t.Errorf("line %q: Total = %v", r.Term, r.Total)
 		}
 	}
-	ideal := ErrorModel{Unquantized: true}
-	alone := map[string]ErrorModel{}
-	set := func(name string, f func(*ErrorModel)) {
+	ideal := sim.ErrorModel{Unquantized: true}
+	alone := map[string]sim.ErrorModel{}
+	set := func(name string, f func(*sim.ErrorModel)) {
 		mm := ideal
 		f(&mm)
 		alone[name] = mm
 	}
-	set("loss (decay Γ)", func(e *ErrorModel) { e.Decay = m.Decay })
-	set("dephasing (γ_φ)", func(e *ErrorModel) { e.Dephasing = m.Dephasing })
-	set("quantisation (DAC)", func(e *ErrorModel) { e.Unquantized = false })
-	set("phase resolution", func(e *ErrorModel) { e.PhaseStep = m.PhaseStep })
-	set("bandwidth (low-pass)", func(e *ErrorModel) { e.RiseTime, e.Filter = m.RiseTime, m.Filter })
-	set("amplitude error", func(e *ErrorModel) { e.AmplitudeError = m.AmplitudeError })
-	set("two-photon detuning", func(e *ErrorModel) { e.TwoPhotonDetuning = m.TwoPhotonDetuning })
+	set("loss (decay Γ)", func(e *sim.ErrorModel) { e.Decay = m.Decay })
+	set("dephasing (γ_φ)", func(e *sim.ErrorModel) { e.Dephasing = m.Dephasing })
+	set("quantisation (DAC)", func(e *sim.ErrorModel) { e.Unquantized = false })
+	set("phase resolution", func(e *sim.ErrorModel) { e.PhaseStep = m.PhaseStep })
+	set("bandwidth (low-pass)", func(e *sim.ErrorModel) { e.RiseTime, e.Filter = m.RiseTime, m.Filter })
+	set("amplitude error", func(e *sim.ErrorModel) { e.AmplitudeError = m.AmplitudeError })
+	set("two-photon detuning", func(e *sim.ErrorModel) { e.TwoPhotonDetuning = m.TwoPhotonDetuning })
 	alone["total"] = m
-	out0, err := Simulate(w, ideal)
+	out0, err := sim.Simulate(w, ideal)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -64,7 +67,7 @@ func TestBudgetLines(t *testing.T) {
 		t.Errorf("leakage %v exceeds the ideal infidelity %v (F ≤ 1 − leakage)", rows[1].Infidelity, rows[0].Infidelity)
 	}
 	for _, r := range rows[2:] {
-		out, err := Simulate(w, alone[r.Term])
+		out, err := sim.Simulate(w, alone[r.Term])
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -87,8 +90,8 @@ func TestBudgetLines(t *testing.T) {
 
 	// A model without errors: ideal, leakage and total only, and an
 	// adiabatic waveform names the first line non-adiabaticity.
-	tw := rbTripod(t, math.Pi/4, 0.05, 20e6)
-	rows, err = Budget(context.Background(), tw, ErrorModel{Unquantized: true}, nil)
+	tw := wavetest.RobustTripod(t, math.Pi/4, 0.05, 20e6)
+	rows, err = Budget(context.Background(), tw, sim.ErrorModel{Unquantized: true}, nil)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -1,4 +1,4 @@
-package waveform_test
+package sim_test
 
 import (
 	"fmt"
@@ -8,6 +8,7 @@ import (
 
 	"github.com/loopgate/loopgate/holonomy"
 	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/sim"
 )
 
 // Hardware imperfections in the error model: a first-order (RC) output
@@ -31,18 +32,18 @@ func ExampleErrorModel() {
 	if err != nil {
 		log.Fatal(err)
 	}
-	sim := waveform.NewSimulator(w)
-	var out waveform.Outcome
+	s := sim.NewSimulator(w)
+	var out sim.Outcome
 	for _, c := range []struct {
 		name string
-		m    waveform.ErrorModel
+		m    sim.ErrorModel
 	}{
-		{"ideal", waveform.ErrorModel{}},
-		{"first-order filter, 10 ns rise", waveform.ErrorModel{Filter: waveform.FirstOrderFilter, RiseTime: 10e-9}},
-		{"phase step 2π/64", waveform.ErrorModel{PhaseStep: 2 * math.Pi / 64}},
-		{"phase step 2π/1024", waveform.ErrorModel{PhaseStep: 2 * math.Pi / 1024}},
+		{"ideal", sim.ErrorModel{}},
+		{"first-order filter, 10 ns rise", sim.ErrorModel{Filter: sim.FirstOrderFilter, RiseTime: 10e-9}},
+		{"phase step 2π/64", sim.ErrorModel{PhaseStep: 2 * math.Pi / 64}},
+		{"phase step 2π/1024", sim.ErrorModel{PhaseStep: 2 * math.Pi / 1024}},
 	} {
-		if err := sim.Run(c.m, &out); err != nil {
+		if err := s.Run(c.m, &out); err != nil {
 			log.Fatal(err)
 		}
 		fmt.Printf("%-31s F = %.6f\n", c.name+":", out.Fidelity)

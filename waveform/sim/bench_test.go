@@ -1,14 +1,17 @@
-package waveform
+package sim
 
 import (
 	"math"
 	"testing"
+
+	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/internal/wavetest"
 )
 
 // tripod2000 is a tripod gate of about 2000 samples at 1 GS/s (18 MHz
 // Rabi limit, default adiabaticity target).
-func tripod2000(tb testing.TB) *Waveform {
-	return mustBuild(tb, tripodPlan(math.Pi/4, DefaultAdiabaticity), testHardware(3, 18e6))
+func tripod2000(tb testing.TB) *waveform.Waveform {
+	return wavetest.MustBuild(tb, wavetest.TripodPlan(math.Pi/4, waveform.DefaultAdiabaticity), wavetest.Hardware(3, 18e6))
 }
 
 // The propagation loop allocates nothing: after a first run, Run with the
@@ -111,11 +114,11 @@ func BenchmarkSimulateTripod2000Dephasing(b *testing.B) {
 // BenchmarkBuildTripod times the timing analysis, sampling and
 // quantisation of the tripod gate.
 func BenchmarkBuildTripod(b *testing.B) {
-	p := tripodPlan(math.Pi/4, DefaultAdiabaticity)
-	hw := testHardware(3, 18e6)
+	p := wavetest.TripodPlan(math.Pi/4, waveform.DefaultAdiabaticity)
+	hw := wavetest.Hardware(3, 18e6)
 	b.ReportAllocs()
 	for i := 0; i < b.N; i++ {
-		if _, err := Build(p, hw); err != nil {
+		if _, err := waveform.Build(p, hw); err != nil {
 			b.Fatal(err)
 		}
 	}

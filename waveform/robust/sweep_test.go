@@ -1,4 +1,4 @@
-package waveform
+package robust
 
 import (
 	"bytes"
@@ -10,53 +10,9 @@ import (
 	"sync/atomic"
 	"testing"
 
-	"github.com/loopgate/loopgate/holonomy"
+	"github.com/loopgate/loopgate/waveform/internal/wavetest"
+	"github.com/loopgate/loopgate/waveform/sim"
 )
-
-// Test gates of the robustness tests. The hardware numbers are invented
-// demo values (20 MHz Rabi limit, 1 GS/s, 14-bit DAC).
-
-// rbHardware returns demo hardware for nch channels with Rabi limit rabi
-// (Hz): testHardware with a slower slew limit and longer gates allowed.
-func rbHardware(nch int, rabi float64) Hardware {
-	h := testHardware(nch, rabi)
-	h.MaxSlew, h.MaxDuration = 1e15, 1e-3
-	return h
-}
-
-// rbTripod builds the adiabatic tripod gate of sliceLoop(phi0) with
-// adiabaticity goal alpha and Rabi limit rabi (Hz).
-func rbTripod(tb testing.TB, phi0, alpha, rabi float64) *Waveform {
-	tb.Helper()
-	p := &Plan{Scheme: holonomy.Tripod(), Target: rotation(phi0),
-		Segments: []Segment{{Kind: Adiabatic, Shape: sliceLoop(phi0)}}, Adiabaticity: alpha}
-	w, err := Build(p, rbHardware(3, rabi))
-	if err != nil {
-		tb.Fatal(err)
-	}
-	return w
-}
-
-// rbLambda builds the nonadiabatic Λ gate of Sjöqvist et al., New J.
-// Phys. 14, 103035 (2012): one resonant pulse of area 2π at fixed (θ, φ)
-// (holonomy.LambdaPoint), acting on the qubit as n·σ,
-// n = (sinθ cosφ, sinθ sinφ, cosθ).
-func rbLambda(tb testing.TB, theta, phi float64) *Waveform {
-	tb.Helper()
-	st, ct := math.Sincos(theta)
-	e := complex(math.Cos(phi), math.Sin(phi))
-	target := holonomy.NewMatFrom(2, 2, []complex128{complex(ct, 0), complex(st, 0) * complex(real(e), -imag(e)), complex(st, 0) * e, complex(-ct, 0)})
-	p := &Plan{Scheme: holonomy.Lambda(), Target: target, Segments: []Segment{{
-		Kind:  Cyclic,
-		Shape: func(_ float64, pt holonomy.Point) { holonomy.LambdaPoint(pt, 1, theta, phi) },
-		Area:  2 * math.Pi,
-	}}}
-	w, err := Build(p, rbHardware(2, 20e6))
-	if err != nil {
-		tb.Fatal(err)
-	}
-	return w
-}
 
 func TestSweepRangeValues(t *testing.T) {
 	r := Range{Axis: AmplitudeAxis, Min: -0.3, Max: 0.3, Points: 7}
@@ -124,10 +80,10 @@ func TestSweepWidthQuadratic(t *testing.T) {
 // TestSweepMapDeterministic checks that the map does not depend on the
 // number of workers and that every point equals a direct simulation.
 func TestSweepMapDeterministic(t *testing.T) {
-	w := rbLambda(t, math.Pi/2, 0)
+	w := wavetest.RobustLambda(t, math.Pi/2, 0)
 	x := Range{Axis: AmplitudeAxis, Min: -0.05, Max: 0.05, Points: 5}
 	y := Range{Axis: TwoPhotonAxis, Min: -1e5, Max: 2e5, Points: 4}
-	base := ErrorModel{Decay: 2e5}
+	base := sim.ErrorModel{Decay: 2e5}
 	var maps []*ErrorMap
 	for _, nw := range []int{1, 3} {
 		m, err := SweepMap(context.Background(), w, x, y, &SweepOptions{Base: base, Workers: nw})
@@ -146,7 +102,7 @@ func TestSweepMapDeterministic(t *testing.T) {
 	// Spot check against a fresh simulation.
 	m := base
 	m.AmplitudeError, m.TwoPhotonDetuning = maps[0].X[4], maps[0].Y[1]
-	out, err := Simulate(w, m)
+	out, err := sim.Simulate(w, m)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -159,7 +115,7 @@ func TestSweepMapDeterministic(t *testing.T) {
 }
 
 func TestSweepProgressAndCancel(t *testing.T) {
-	w := rbLambda(t, math.Pi/2, 0)
+	w := wavetest.RobustLambda(t, math.Pi/2, 0)
 	r := Range{Axis: AmplitudeAxis, Min: -0.1, Max: 0.1, Points: 41}
 	var buf bytes.Buffer
 	last := 0
@@ -205,7 +161,7 @@ func TestSweepProgressAndCancel(t *testing.T) {
 // detuning) of an adiabatic tripod gate of about 2 000 samples on
 // GOMAXPROCS workers; run with -cpu 1,2 for the parallel speed-up.
 func BenchmarkMap41(b *testing.B) {
-	w := rbTripod(b, math.Pi/4, 0.05, 20e6)
+	w := wavetest.RobustTripod(b, math.Pi/4, 0.05, 20e6)
 	x := Range{Axis: AmplitudeAxis, Min: -0.2, Max: 0.2, Points: 41}
 	y := Range{Axis: TwoPhotonAxis, Min: -20e3, Max: 20e3, Points: 41}
 	b.ReportAllocs()
@@ -223,15 +179,15 @@ func BenchmarkMap41(b *testing.B) {
 // reused workspace (the unit of work of SweepAxis and SweepMap); it must
 // not allocate.
 func BenchmarkSweepPoint(b *testing.B) {
-	w := rbTripod(b, math.Pi/4, 0.05, 20e6)
-	wk := new(robustWorker)
-	if _, err := wk.run(w, ErrorModel{}); err != nil {
+	w := wavetest.RobustTripod(b, math.Pi/4, 0.05, 20e6)
+	wk := new(Worker)
+	if _, err := wk.Run(w, sim.ErrorModel{}); err != nil {
 		b.Fatal(err)
 	}
 	b.ReportAllocs()
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
-		if _, err := wk.run(w, ErrorModel{AmplitudeError: 0.01, TwoPhotonDetuning: 1e3}); err != nil {
+		if _, err := wk.Run(w, sim.ErrorModel{AmplitudeError: 0.01, TwoPhotonDetuning: 1e3}); err != nil {
 			b.Fatal(err)
 		}
 	}

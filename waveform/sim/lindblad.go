@@ -1,4 +1,4 @@
-package waveform
+package sim
 
 import (
 	"github.com/loopgate/loopgate/holonomy"

@@ -1,4 +1,4 @@
-package waveform
+package sim
 
 import (
 	"math"
@@ -7,13 +7,15 @@ import (
 	"testing"
 
 	"github.com/loopgate/loopgate/holonomy"
+	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/internal/wavetest"
 )
 
 // stepWaveform returns the Λ Hadamard waveform (1 GS/s) with channel p0
 // replaced by a rectangle of height 1 MHz from sample k0 to the end and
 // channel p1 switched off, for reading the filtered drive.
-func stepWaveform(t *testing.T, k0 int) *Waveform {
-	w := mustBuild(t, lambdaPlan(math.Pi/4, 0, hadamard()), testHardware(2, 10e6))
+func stepWaveform(t *testing.T, k0 int) *waveform.Waveform {
+	w := wavetest.MustBuild(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6))
 	for c := range w.I {
 		for k := range w.I[c] {
 			v := 0.0
@@ -114,7 +116,7 @@ func TestFirstOrderStepResponse(t *testing.T) {
 // 1 − e^{−a(x + back)} ≥ 1 − 1e−12 (unit DC gain up to the neglected
 // tail).
 func TestFirstOrderKernel(t *testing.T) {
-	w := mustBuild(t, lambdaPlan(math.Pi/4, 0, hadamard()), testHardware(2, 10e6))
+	w := wavetest.MustBuild(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6))
 	s := NewSimulator(w)
 	const sub = 8
 	rise := 3e-9
@@ -157,7 +159,7 @@ func TestFirstOrderKernel(t *testing.T) {
 // drive direction, so a rise time short against the pulses keeps
 // F ≥ 0.9999 while a long one degrades the gate.
 func TestFirstOrderLambda(t *testing.T) {
-	lam := mustBuild(t, lambdaPlan(math.Pi/4, 0, hadamard()), testHardware(2, 10e6))
+	lam := wavetest.MustBuild(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6))
 	ideal, err := Simulate(lam, ErrorModel{Unquantized: true})
 	if err != nil {
 		t.Fatal(err)
@@ -189,7 +191,7 @@ func TestFirstOrderLambda(t *testing.T) {
 
 	theta, phi, gamma := math.Pi/3, 0.4, math.Pi/2
 	p := twoSegmentPlan(theta, phi, gamma)
-	w := mustBuild(t, p, testHardware(2, 10e6))
+	w := wavetest.MustBuild(t, p, wavetest.Hardware(2, 10e6))
 	zoh, err := Simulate(w, ErrorModel{})
 	if err != nil {
 		t.Fatal(err)
@@ -215,7 +217,7 @@ func TestFirstOrderLambda(t *testing.T) {
 // twoSegmentPlan is the plan of TestTwoSegmentLoop: two pulses of area π
 // along the bright direction of (θ, φ), the second with its drive phase
 // shifted by γ.
-func twoSegmentPlan(theta, phi, gamma float64) *Plan {
+func twoSegmentPlan(theta, phi, gamma float64) *waveform.Plan {
 	b := []complex128{cmplx.Rect(math.Sin(theta/2), -phi), complex(-math.Cos(theta/2), 0)}
 	f := 1 + cmplx.Rect(1, -gamma)
 	target := holonomy.NewMat(2, 2)
@@ -228,12 +230,12 @@ func twoSegmentPlan(theta, phi, gamma float64) *Plan {
 			target.Set(i, j, v)
 		}
 	}
-	return &Plan{
+	return &waveform.Plan{
 		Scheme: holonomy.Lambda(),
 		Target: target,
-		Segments: []Segment{
-			{Kind: Cyclic, Area: math.Pi, Shape: func(s float64, p holonomy.Point) { holonomy.LambdaPoint(p, 1, theta, phi) }},
-			{Kind: Cyclic, Area: math.Pi, Shape: func(s float64, p holonomy.Point) {
+		Segments: []waveform.Segment{
+			{Kind: waveform.Cyclic, Area: math.Pi, Shape: func(s float64, p holonomy.Point) { holonomy.LambdaPoint(p, 1, theta, phi) }},
+			{Kind: waveform.Cyclic, Area: math.Pi, Shape: func(s float64, p holonomy.Point) {
 				holonomy.LambdaPoint(p, 1, theta, phi)
 				for c := range p.Drive {
 					p.Drive[c] *= cmplx.Rect(1, gamma)
@@ -263,7 +265,7 @@ func TestPhaseStepLambda(t *testing.T) {
 		// Quasi-random phases in (−π, π), unrelated to the grids.
 		_, fr := math.Modf(0.1 + float64(g)*0.6180339887498949)
 		phi := 2*math.Pi*fr - math.Pi
-		w := mustBuild(t, lambdaPlan(theta, phi, nDotSigma(theta, phi)), testHardware(2, 10e6))
+		w := wavetest.MustBuild(t, wavetest.LambdaPlan(theta, phi, wavetest.NDotSigma(theta, phi)), wavetest.Hardware(2, 10e6))
 		s := NewSimulator(w)
 		var base Outcome
 		if err := s.Run(ErrorModel{Unquantized: true}, &base); err != nil {
@@ -316,7 +318,7 @@ func TestPhaseStepLambda(t *testing.T) {
 // phase already lies (the Λ Hadamard's drives are real: phases 0 on p0
 // and π on p1, both multiples of π/2 and of 2π/1024).
 func TestIdealModelBitForBit(t *testing.T) {
-	w := mustBuild(t, lambdaPlan(math.Pi/4, 0, hadamard()), testHardware(2, 10e6))
+	w := wavetest.MustBuild(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6))
 	ref, err := Simulate(w, ErrorModel{})
 	if err != nil {
 		t.Fatal(err)

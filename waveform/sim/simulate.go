@@ -1,4 +1,4 @@
-package waveform
+package sim
 
 import (
 	"errors"
@@ -6,6 +6,7 @@ import (
 	"math"
 
 	"github.com/loopgate/loopgate/holonomy"
+	"github.com/loopgate/loopgate/waveform"
 )
 
 // ErrorModel lists the imperfections a verification includes. The zero
@@ -163,7 +164,7 @@ type Simulator struct {
 	// samples, including the last sample.
 	TracePoints int
 
-	w       *Waveform
+	w       *waveform.Waveform
 	n, d    int
 	nch     int
 	excited []int
@@ -201,10 +202,10 @@ type Simulator struct {
 // Run makes before any work): amplitude errors above −1, finite detunings,
 // rates and detunings the sampled model resolves, a filter whose reach and
 // step count stay within bounds, and so on.
-func (w *Waveform) CheckModel(m ErrorModel) error { return NewSimulator(w).validate(&m) }
+func CheckModel(w *waveform.Waveform, m ErrorModel) error { return NewSimulator(w).validate(&m) }
 
 // NewSimulator returns a workspace for simulating w.
-func NewSimulator(w *Waveform) *Simulator {
+func NewSimulator(w *waveform.Waveform) *Simulator {
 	n := w.Scheme.Dim()
 	s := &Simulator{
 		w: w, n: n, d: len(w.Scheme.Computational), nch: len(w.Scheme.Channels),
@@ -238,7 +239,7 @@ func NewSimulator(w *Waveform) *Simulator {
 // Simulate propagates w under m and returns the outcome with about 400
 // decimated population samples. It allocates a Simulator; use one directly
 // to run many models.
-func Simulate(w *Waveform, m ErrorModel) (*Outcome, error) {
+func Simulate(w *waveform.Waveform, m ErrorModel) (*Outcome, error) {
 	s := NewSimulator(w)
 	s.TracePoints = 400
 	out := new(Outcome)

@@ -1,10 +1,13 @@
-package waveform
+package robust
 
 import (
 	"context"
 	"fmt"
 	"math"
 	"strings"
+
+	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/sim"
 )
 
 // BudgetRow is one line of an error budget.
@@ -53,14 +56,14 @@ type BudgetRow struct {
 //     rate, zero error, Unquantized set) has no line.
 //   - total: 1 − F with all of m on; its note also gives the sum of the
 //     separate lines, which differs from the total when terms interact.
-func Budget(ctx context.Context, w *Waveform, m ErrorModel, opt *SweepOptions) ([]BudgetRow, error) {
-	ideal := ErrorModel{Unquantized: true}
+func Budget(ctx context.Context, w *waveform.Waveform, m sim.ErrorModel, opt *SweepOptions) ([]BudgetRow, error) {
+	ideal := sim.ErrorModel{Unquantized: true}
 	type term struct {
 		name, note string
-		model      ErrorModel
+		model      sim.ErrorModel
 	}
 	terms := []term{{model: ideal}} // index 0: ideal, also the leakage line
-	add := func(on bool, name, note string, set func(*ErrorModel)) {
+	add := func(on bool, name, note string, set func(*sim.ErrorModel)) {
 		if !on {
 			return
 		}
@@ -70,33 +73,33 @@ func Budget(ctx context.Context, w *Waveform, m ErrorModel, opt *SweepOptions) (
 	}
 	add(m.Decay > 0, "loss (decay Γ)",
 		fmt.Sprintf("Γ = %.4g /s from every excited level, non-Hermitian loss; alone on the ideal model", m.Decay),
-		func(e *ErrorModel) { e.Decay = m.Decay })
+		func(e *sim.ErrorModel) { e.Decay = m.Decay })
 	add(m.Dephasing > 0, "dephasing (γ_φ)",
 		fmt.Sprintf("γ_φ = %.4g /s on the qubit levels, Lindblad master equation; alone on the ideal model", m.Dephasing),
-		func(e *ErrorModel) { e.Dephasing = m.Dephasing })
+		func(e *sim.ErrorModel) { e.Dephasing = m.Dephasing })
 	add(!m.Unquantized, "quantisation (DAC)",
 		fmt.Sprintf("drive from the %d-bit DAC codes instead of the unquantised samples; alone on the ideal model", w.Hardware.DACBits),
-		func(e *ErrorModel) { e.Unquantized = false })
+		func(e *sim.ErrorModel) { e.Unquantized = false })
 	add(m.PhaseStep > 0, "phase resolution",
 		fmt.Sprintf("drive phases rounded to multiples of %.4g rad (%.4g°); alone on the ideal model", m.PhaseStep, m.PhaseStep*180/math.Pi),
-		func(e *ErrorModel) { e.PhaseStep = m.PhaseStep })
+		func(e *sim.ErrorModel) { e.PhaseStep = m.PhaseStep })
 	add(m.RiseTime > 0, "bandwidth (low-pass)",
 		fmt.Sprintf("%s low-pass, 10–90%% rise time %.4g ns, %d sub-steps per sample; alone on the ideal model", m.Filter, m.RiseTime*1e9, subSteps(m.SubSteps)),
-		func(e *ErrorModel) { e.RiseTime, e.Filter, e.SubSteps = m.RiseTime, m.Filter, m.SubSteps })
+		func(e *sim.ErrorModel) { e.RiseTime, e.Filter, e.SubSteps = m.RiseTime, m.Filter, m.SubSteps })
 	add(m.AmplitudeError != 0 || anyNonZero(m.ChannelErrors), "amplitude error",
 		amplitudeNote(w, m),
-		func(e *ErrorModel) { e.AmplitudeError, e.ChannelErrors = m.AmplitudeError, m.ChannelErrors })
+		func(e *sim.ErrorModel) { e.AmplitudeError, e.ChannelErrors = m.AmplitudeError, m.ChannelErrors })
 	add(m.OnePhotonDetuning != 0, "one-photon detuning",
-		fmt.Sprintf("Δ/2π = %s on every excited level; alone on the ideal model", FormatSI(m.OnePhotonDetuning, "Hz")),
-		func(e *ErrorModel) { e.OnePhotonDetuning = m.OnePhotonDetuning })
+		fmt.Sprintf("Δ/2π = %s on every excited level; alone on the ideal model", waveform.FormatSI(m.OnePhotonDetuning, "Hz")),
+		func(e *sim.ErrorModel) { e.OnePhotonDetuning = m.OnePhotonDetuning })
 	add(m.TwoPhotonDetuning != 0, "two-photon detuning",
-		fmt.Sprintf("δ/2π = %s on the second qubit level; alone on the ideal model", FormatSI(m.TwoPhotonDetuning, "Hz")),
-		func(e *ErrorModel) { e.TwoPhotonDetuning = m.TwoPhotonDetuning })
+		fmt.Sprintf("δ/2π = %s on the second qubit level; alone on the ideal model", waveform.FormatSI(m.TwoPhotonDetuning, "Hz")),
+		func(e *sim.ErrorModel) { e.TwoPhotonDetuning = m.TwoPhotonDetuning })
 	terms = append(terms, term{name: "total", model: m})
 
-	outs := make([]Outcome, len(terms))
-	err := runJobs(ctx, len(terms), opt, "error budget", func(wk *robustWorker, k int) error {
-		out, err := wk.run(w, terms[k].model)
+	outs := make([]sim.Outcome, len(terms))
+	err := RunJobs(ctx, len(terms), opt, "error budget", func(wk *Worker, k int) error {
+		out, err := wk.Run(w, terms[k].model)
 		if err != nil {
 			return err
 		}
@@ -151,7 +154,7 @@ func anyNonZero(v []float64) bool {
 	return false
 }
 
-func amplitudeNote(w *Waveform, m ErrorModel) string {
+func amplitudeNote(w *waveform.Waveform, m sim.ErrorModel) string {
 	var b strings.Builder
 	fmt.Fprintf(&b, "Ω → (1 + ε)Ω with ε = %.4g", m.AmplitudeError)
 	for c, v := range m.ChannelErrors {
@@ -163,9 +166,9 @@ func amplitudeNote(w *Waveform, m ErrorModel) string {
 	return b.String()
 }
 
-func hasAdiabatic(w *Waveform) bool {
+func hasAdiabatic(w *waveform.Waveform) bool {
 	for _, s := range w.Spans {
-		if s.Kind == Adiabatic {
+		if s.Kind == waveform.Adiabatic {
 			return true
 		}
 	}
