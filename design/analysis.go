@@ -23,11 +23,14 @@ type analysis struct {
 	errMap     *robust.ErrorMap
 }
 
+// Progress is one report on a batch of robustness simulations.
+type Progress = robust.Progress
+
 // analyse verifies w with the ideal model and with model, computes the
 // error budget and, when sweeps is true, the robustness sweeps, the map
 // and the comparison with the dynamical gate. Every stage is
 // deterministic whatever the number of cores.
-func analyse(ctx context.Context, w *waveform.Waveform, model sim.ErrorModel, sp sweepPlan, sweeps bool, progress, log io.Writer) (*analysis, error) {
+func analyse(ctx context.Context, w *waveform.Waveform, model sim.ErrorModel, sp sweepPlan, sweeps bool, progress func(Progress), log io.Writer) (*analysis, error) {
 	a := &analysis{model: model}
 	var err error
 	if a.ideal, err = sim.Verify(w, sim.ErrorModel{}); err != nil {
@@ -41,7 +44,7 @@ func analyse(ctx context.Context, w *waveform.Waveform, model sim.ErrorModel, sp
 	if a.traces, err = sim.Simulate(w, sim.ErrorModel{}); err != nil {
 		return nil, fmt.Errorf("population traces: %w", err)
 	}
-	opt := &robust.SweepOptions{Progress: progress}
+	opt := &robust.SweepOptions{OnProgress: progress}
 	if a.budget, err = robust.Budget(ctx, w, model, opt); err != nil {
 		return nil, fmt.Errorf("error budget: %w", err)
 	}

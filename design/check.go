@@ -4,13 +4,13 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"github.com/loopgate/loopgate/design/spec"
-	"github.com/loopgate/loopgate/waveform/wavefile"
 	"math"
 	"math/cmplx"
 
+	"github.com/loopgate/loopgate/design/spec"
 	"github.com/loopgate/loopgate/holonomy"
 	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/wavefile"
 )
 
 // CheckOptions controls CheckLoopFile.

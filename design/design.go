@@ -10,6 +10,7 @@ import (
 	"path/filepath"
 	"strings"
 
+	"github.com/loopgate/loopgate/design/internal/atomicfile"
 	"github.com/loopgate/loopgate/design/spec"
 	"github.com/loopgate/loopgate/holonomy"
 	"github.com/loopgate/loopgate/optimize"
@@ -48,8 +49,9 @@ type Options struct {
 	// NoSweeps skips the robustness sweeps, the map and the comparison
 	// with the dynamical gate (the error budget is still computed).
 	NoSweeps bool
-	// Progress, if not nil, receives progress bars (a terminal).
-	Progress io.Writer
+	// OnProgress, if not nil, receives the progress of the robustness
+	// simulations (see robust.SweepOptions.OnProgress).
+	OnProgress func(Progress)
 	// Log, if not nil, receives one line per pipeline stage.
 	Log io.Writer
 }
@@ -76,10 +78,10 @@ func Design(ctx context.Context, spc *spec.Spec, opt Options) (*Outcome, error) 
 	for i, n := range names {
 		paths[i] = filepath.Join(opt.OutDir, n)
 	}
-	if err := PrepareOutputDir(opt.OutDir); err != nil {
+	if err := atomicfile.PrepareDir(opt.OutDir); err != nil {
 		return nil, &OutputError{Err: err}
 	}
-	if err := CheckOutputs(paths, opt.Overwrite); err != nil {
+	if err := atomicfile.CheckPaths(paths, opt.Overwrite); err != nil {
 		return nil, &OutputError{Err: err}
 	}
 
@@ -113,7 +115,7 @@ func Design(ctx context.Context, spc *spec.Spec, opt Options) (*Outcome, error) 
 	if err := checkModels(w, model, sweeps); err != nil {
 		return nil, &InputError{Err: fmt.Errorf("spec %s: errors and sweeps: %w", spc.File, err)}
 	}
-	a, err := analyse(ctx, w, model, sweeps, !opt.NoSweeps, opt.Progress, opt.Log)
+	a, err := analyse(ctx, w, model, sweeps, !opt.NoSweeps, opt.OnProgress, opt.Log)
 	if err != nil {
 		return nil, err
 	}
@@ -349,9 +351,9 @@ func FormatSI(v float64, unit string) string { return waveform.FormatSI(v, unit)
 // writeAll writes every output to a temporary file in its folder first
 // and renames them into place only when all were written and the run was
 // not interrupted, so an error or Ctrl-C leaves none of them (and a kill
-// leaves at most hidden temporary files, which CleanTemps removes).
+// leaves at most hidden temporary files, which atomicfile.CleanTemps removes).
 func writeAll(ctx context.Context, paths []string, overwrite bool, writers []func(io.Writer) error) error {
-	files := make([]*AtomicFile, 0, len(paths))
+	files := make([]*atomicfile.File, 0, len(paths))
 	defer func() {
 		for _, f := range files {
 			f.Abort()
@@ -361,7 +363,7 @@ func writeAll(ctx context.Context, paths []string, overwrite bool, writers []fun
 		if err := ctx.Err(); err != nil {
 			return err
 		}
-		f, err := CreateAtomic(paths[i], overwrite)
+		f, err := atomicfile.Create(paths[i], overwrite)
 		if err != nil {
 			return &OutputError{Err: err}
 		}

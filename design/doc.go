@@ -18,8 +18,8 @@
 //
 // # Errors
 //
-// Functions return errors with context naming the file and the field.
-// ExitCode maps them to the command's exit codes: *InputError (bad input),
+// Functions return errors with context naming the file and the field,
+// classified for the command's exit codes as *InputError (bad input),
 // *InfeasibleError (unreachable target or impossible limits),
 // *OutputError (outputs that exist or cannot be written),
 // *ChecksFailedError (work done, a check failed) and context.Canceled

@@ -3,6 +3,7 @@ package design
 import (
 	"math"
 
+	"github.com/loopgate/loopgate/design/internal/atomicfile"
 	"github.com/loopgate/loopgate/waveform"
 	"github.com/loopgate/loopgate/waveform/sim"
 )
@@ -233,4 +234,15 @@ func finitePtr(x float64) *float64 {
 		return nil
 	}
 	return &x
+}
+
+// WriteOutput writes data to path in one step: the path holds either its
+// previous content or all of data, never a part. Without overwrite an
+// existing path is refused (the error wraps fs.ErrExist). Errors are
+// *OutputError.
+func WriteOutput(path string, data []byte, overwrite bool) error {
+	if err := atomicfile.WriteFile(path, data, overwrite); err != nil {
+		return &OutputError{Err: err}
+	}
+	return nil
 }

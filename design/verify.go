@@ -8,6 +8,7 @@ import (
 	"os"
 	"path/filepath"
 
+	"github.com/loopgate/loopgate/design/internal/atomicfile"
 	"github.com/loopgate/loopgate/design/spec"
 	"github.com/loopgate/loopgate/waveform/robust"
 	"github.com/loopgate/loopgate/waveform/sim"
@@ -103,8 +104,9 @@ type VerifyOptions struct {
 	Overwrite bool
 	// NoSweeps skips the robustness sweeps, map and comparison.
 	NoSweeps bool
-	// Progress, if not nil, receives progress bars.
-	Progress io.Writer
+	// OnProgress, if not nil, receives the progress of the robustness
+	// simulations (see robust.SweepOptions.OnProgress).
+	OnProgress func(Progress)
 }
 
 // VerifyFile reads a waveform file, replays it and re-runs every check.
@@ -121,10 +123,10 @@ func VerifyFile(ctx context.Context, path string, opt VerifyOptions) (*Outcome, 
 		return nil, &InputError{Err: fmt.Errorf("waveform %s: /spec: the spec text does not match /spec_sha256 (the file was edited)", path)}
 	}
 	if opt.Report != "" {
-		if err := PrepareOutputDir(filepath.Dir(opt.Report)); err != nil {
+		if err := atomicfile.PrepareDir(filepath.Dir(opt.Report)); err != nil {
 			return nil, &OutputError{Err: err}
 		}
-		if err := CheckOutputs([]string{opt.Report}, opt.Overwrite); err != nil {
+		if err := atomicfile.CheckPaths([]string{opt.Report}, opt.Overwrite); err != nil {
 			return nil, &OutputError{Err: err}
 		}
 	}
@@ -147,7 +149,7 @@ func VerifyFile(ctx context.Context, path string, opt VerifyOptions) (*Outcome, 
 	if err := checkModels(w, model, sp); err != nil {
 		return nil, &InputError{Err: fmt.Errorf("waveform %s: error model: %w", path, err)}
 	}
-	a, err := analyse(ctx, w, model, sp, !opt.NoSweeps, opt.Progress, nil)
+	a, err := analyse(ctx, w, model, sp, !opt.NoSweeps, opt.OnProgress, nil)
 	if err != nil {
 		return nil, err
 	}
@@ -165,7 +167,7 @@ func VerifyFile(ctx context.Context, path string, opt VerifyOptions) (*Outcome, 
 	}
 	if opt.Report != "" {
 		data := reportData(o, w, nil, a, "")
-		if err := WriteAtomic(opt.Report, opt.Overwrite, func(wr io.Writer) error { return writeReport(wr, data) }); err != nil {
+		if err := atomicfile.WriteWith(opt.Report, opt.Overwrite, func(wr io.Writer) error { return writeReport(wr, data) }); err != nil {
 			return nil, &OutputError{Err: err}
 		}
 		o.Files = append(o.Files, opt.Report)
@@ -192,14 +194,14 @@ func readWaveformFile(path string) (*wavefile.File, error) {
 func openInput(path, what string) (*os.File, error) {
 	st, err := os.Stat(path)
 	if err != nil {
-		return nil, &InputError{Err: fmt.Errorf("%s %s: %w", what, path, unwrapPath(err))}
+		return nil, &InputError{Err: fmt.Errorf("%s %s: %w", what, path, atomicfile.UnwrapPath(err))}
 	}
 	if st.IsDir() {
 		return nil, &InputError{Err: fmt.Errorf("%s %s: is a directory; expected a file", what, path)}
 	}
 	r, err := os.Open(path)
 	if err != nil {
-		return nil, &InputError{Err: fmt.Errorf("%s %s: %w", what, path, unwrapPath(err))}
+		return nil, &InputError{Err: fmt.Errorf("%s %s: %w", what, path, atomicfile.UnwrapPath(err))}
 	}
 	return r, nil
 }

@@ -4,10 +4,8 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"io"
 	"math"
 	"runtime"
-	"strings"
 	"sync"
 	"sync/atomic"
 
@@ -153,14 +151,12 @@ type SweepOptions struct {
 	// workspace; 0 means runtime.GOMAXPROCS(0). Results do not depend on
 	// it: every simulation writes into its own slot.
 	Workers int
-	// Progress, if not nil, receives a one-line progress bar redrawn
-	// with a carriage return and ended with a newline. The caller decides
-	// whether the destination is a terminal.
-	Progress io.Writer
-	// OnProgress, if not nil, is called after each simulation with the
-	// number done and the total. Calls come from the worker goroutines,
-	// one at a time, with done increasing.
-	OnProgress func(done, total int)
+	// OnProgress, if not nil, receives the progress of every batch of
+	// simulations: once with Done = 0 when a batch starts, after each
+	// simulation, and once with Final set when the batch ends (finished,
+	// failed or cancelled). Calls come from the worker goroutines, one at
+	// a time, with Done increasing.
+	OnProgress func(Progress)
 	// Threshold is the fidelity defining the robust region in Compare;
 	// 0 means DefaultThreshold.
 	Threshold float64
@@ -416,7 +412,7 @@ func RunJobs(ctx context.Context, n int, opt *SweepOptions, label string, job fu
 		firstEr error
 		wg      sync.WaitGroup
 	)
-	bar := newProgressBar(opt, label, n)
+	bar := newTracker(opt, label, n)
 	for g := 0; g < nw; g++ {
 		wg.Add(1)
 		go func() {
@@ -452,80 +448,4 @@ func RunJobs(ctx context.Context, n int, opt *SweepOptions, label string, job fu
 		return fmt.Errorf("cancelled after %d of %d simulations: %w", bar.count(), n, err)
 	}
 	return nil
-}
-
-// progressBar reports progress to SweepOptions.Progress and OnProgress.
-type progressBar struct {
-	mu     sync.Mutex
-	w      io.Writer
-	cb     func(done, total int)
-	label  string
-	total  int
-	done   int
-	drawn  int // last permille drawn, −1 before the first
-	active bool
-}
-
-const barCells = 30
-
-func newProgressBar(opt *SweepOptions, label string, total int) *progressBar {
-	b := &progressBar{label: label, total: total, drawn: -1}
-	if opt != nil {
-		b.w, b.cb = opt.Progress, opt.OnProgress
-	}
-	if b.w != nil {
-		b.draw()
-	}
-	return b
-}
-
-// add records one finished simulation.
-func (b *progressBar) add() {
-	if b.w == nil && b.cb == nil {
-		b.mu.Lock()
-		b.done++
-		b.mu.Unlock()
-		return
-	}
-	b.mu.Lock()
-	defer b.mu.Unlock()
-	b.done++
-	if b.cb != nil {
-		b.cb(b.done, b.total)
-	}
-	if b.w != nil {
-		b.draw()
-	}
-}
-
-func (b *progressBar) count() int {
-	b.mu.Lock()
-	defer b.mu.Unlock()
-	return b.done
-}
-
-// draw redraws the bar when the shown permille changed; b.mu is held (or
-// the bar is not yet shared).
-func (b *progressBar) draw() {
-	pm := b.done * 1000 / b.total
-	if pm == b.drawn {
-		return
-	}
-	b.drawn = pm
-	full := b.done * barCells / b.total
-	// Write errors are ignored: the bar is a courtesy, not output.
-	fmt.Fprintf(b.w, "\r%s [%s%s] %5.1f%% %d/%d", b.label,
-		strings.Repeat("#", full), strings.Repeat(".", barCells-full),
-		float64(pm)/10, b.done, b.total)
-	b.active = true
-}
-
-// finish ends the bar's line.
-func (b *progressBar) finish() {
-	b.mu.Lock()
-	defer b.mu.Unlock()
-	if b.w != nil && b.active {
-		fmt.Fprintln(b.w)
-		b.active = false
-	}
 }

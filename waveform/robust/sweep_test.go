@@ -1,12 +1,10 @@
 package robust
 
 import (
-	"bytes"
 	"context"
 	"errors"
 	"math"
 	"runtime"
-	"strings"
 	"sync/atomic"
 	"testing"
 
@@ -117,27 +115,30 @@ func TestSweepMapDeterministic(t *testing.T) {
 func TestSweepProgressAndCancel(t *testing.T) {
 	w := wavetest.RobustLambda(t, math.Pi/2, 0)
 	r := Range{Axis: AmplitudeAxis, Min: -0.1, Max: 0.1, Points: 41}
-	var buf bytes.Buffer
-	last := 0
-	opt := &SweepOptions{Progress: &buf, OnProgress: func(done, total int) {
-		if done != last+1 || total != 41 {
-			t.Errorf("progress %d/%d after %d", done, total, last)
-		}
-		last = done
-	}}
+	var got []Progress
+	opt := &SweepOptions{OnProgress: func(p Progress) { got = append(got, p) }}
 	if _, err := SweepAxis(context.Background(), w, r, opt); err != nil {
 		t.Fatal(err)
 	}
-	out := buf.String()
-	if last != 41 || !strings.HasPrefix(out, "\r") || !strings.HasSuffix(out, "41/41\n") || !strings.Contains(out, "100.0%") {
-		t.Errorf("progress ended at %d; bar output ends %q", last, out[max(0, len(out)-60):])
+	if len(got) != 41+2 {
+		t.Fatalf("%d progress reports, want 43 (start, 41 simulations, final)", len(got))
+	}
+	for i, p := range got {
+		want := Progress{Label: "sweep " + r.Axis.String(), Done: min(i, 41), Total: 41, Final: i == 42}
+		if p != want {
+			t.Errorf("report %d: %+v, want %+v", i, p, want)
+		}
 	}
 
 	// Cancelled before the start: nothing runs.
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
 	var n atomic.Int32
-	_, err := SweepAxis(ctx, w, r, &SweepOptions{OnProgress: func(int, int) { n.Add(1) }})
+	_, err := SweepAxis(ctx, w, r, &SweepOptions{OnProgress: func(p Progress) {
+		if p.Done > 0 {
+			n.Add(1)
+		}
+	}})
 	if !errors.Is(err, context.Canceled) || n.Load() != 0 {
 		t.Errorf("pre-cancelled: err %v after %d simulations", err, n.Load())
 	}
@@ -146,9 +147,9 @@ func TestSweepProgressAndCancel(t *testing.T) {
 	ctx, cancel = context.WithCancel(context.Background())
 	defer cancel()
 	workers := 2
-	_, err = SweepAxis(ctx, w, r, &SweepOptions{Workers: workers, OnProgress: func(done, _ int) {
-		n.Store(int32(done))
-		if done == 5 {
+	_, err = SweepAxis(ctx, w, r, &SweepOptions{Workers: workers, OnProgress: func(p Progress) {
+		n.Store(int32(p.Done))
+		if p.Done == 5 {
 			cancel()
 		}
 	}})

@@ -1,21 +1,8 @@
 package design
 
 import (
-	"context"
-	"errors"
 	"fmt"
 	"strings"
-)
-
-// Exit codes of the loopgate command, documented in the README.
-const (
-	ExitOK          = 0   // success; every check passed
-	ExitInternal    = 1   // unexpected failure (a bug; please report it)
-	ExitBadInput    = 2   // bad flags, spec, loop file or waveform file
-	ExitChecks      = 3   // the work finished but a check failed
-	ExitInfeasible  = 4   // the target cannot be reached, or the gate does not fit the hardware
-	ExitOutput      = 5   // an output file exists (use --overwrite) or cannot be written
-	ExitInterrupted = 130 // interrupted (Ctrl-C); no partial files were left
 )
 
 // InputError reports bad input: a spec, loop file, waveform file or flag.
@@ -54,29 +41,4 @@ type ChecksFailedError struct {
 // Error returns the message.
 func (e *ChecksFailedError) Error() string {
 	return fmt.Sprintf("%d check(s) failed: %s", len(e.Failed), strings.Join(e.Failed, "; "))
-}
-
-// ExitCode maps an error returned by this package to the command's exit code.
-func ExitCode(err error) int {
-	var (
-		in  *InputError
-		inf *InfeasibleError
-		out *OutputError
-		chk *ChecksFailedError
-	)
-	switch {
-	case err == nil:
-		return ExitOK
-	case errors.Is(err, context.Canceled):
-		return ExitInterrupted
-	case errors.As(err, &in):
-		return ExitBadInput
-	case errors.As(err, &inf):
-		return ExitInfeasible
-	case errors.As(err, &out):
-		return ExitOutput
-	case errors.As(err, &chk):
-		return ExitChecks
-	}
-	return ExitInternal
 }

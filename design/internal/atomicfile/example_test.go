@@ -1,23 +1,23 @@
-package design_test
+package atomicfile_test
 
 import (
 	"fmt"
 	"os"
 	"path/filepath"
 
-	"github.com/loopgate/loopgate/design"
+	"github.com/loopgate/loopgate/design/internal/atomicfile"
 )
 
-func ExampleWriteFileAtomic() {
+func ExampleWriteFile() {
 	dir, _ := os.MkdirTemp("", "loopgate-example")
 	defer os.RemoveAll(dir)
 	path := filepath.Join(dir, "gate.json")
 
-	fmt.Println(design.WriteFileAtomic(path, []byte(`{"ok": true}`), false))
-	// A second write without overwrite is refused and names the flag.
-	err := design.WriteFileAtomic(path, []byte(`{}`), false)
+	fmt.Println(atomicfile.WriteFile(path, []byte(`{"ok": true}`), false))
+	// A second write without overwrite is refused.
+	err := atomicfile.WriteFile(path, []byte(`{}`), false)
 	fmt.Println(err != nil, filepath.Base(path), "kept:", readFile(path))
-	fmt.Println(design.WriteFileAtomic(path, []byte(`{}`), true), "now:", readFile(path))
+	fmt.Println(atomicfile.WriteFile(path, []byte(`{}`), true), "now:", readFile(path))
 	// Output:
 	// <nil>
 	// true gate.json kept: {"ok": true}

@@ -1,4 +1,4 @@
-package design
+package atomicfile
 
 import (
 	"errors"
@@ -33,10 +33,10 @@ func readString(t *testing.T, path string) string {
 	return string(b)
 }
 
-func TestWriteFileAtomicNew(t *testing.T) {
+func TestWriteFileNew(t *testing.T) {
 	dir := t.TempDir()
 	p := filepath.Join(dir, "gate.json")
-	if err := WriteFileAtomic(p, []byte("hello"), false); err != nil {
+	if err := WriteFile(p, []byte("hello"), false); err != nil {
 		t.Fatal(err)
 	}
 	if got := readString(t, p); got != "hello" {
@@ -55,21 +55,21 @@ func TestNoOverwriteWithoutFlag(t *testing.T) {
 	dir := t.TempDir()
 	p := filepath.Join(dir, "gate.json")
 	os.WriteFile(p, []byte("old"), 0o644)
-	err := WriteFileAtomic(p, []byte("new"), false)
-	if err == nil || !errors.Is(err, fs.ErrExist) || !strings.Contains(err.Error(), "already exists; use --overwrite to replace it") {
+	err := WriteFile(p, []byte("new"), false)
+	if err == nil || !errors.Is(err, fs.ErrExist) || !strings.Contains(err.Error(), "already exists and may not be replaced") {
 		t.Fatalf("err = %v", err)
 	}
 	if got := readString(t, p); got != "old" {
 		t.Errorf("existing file changed to %q", got)
 	}
-	if err := CheckOutputs([]string{filepath.Join(dir, "other.csv"), p}, false); err == nil || !strings.Contains(err.Error(), OverwriteFlag) {
-		t.Errorf("CheckOutputs: %v", err)
+	if err := CheckPaths([]string{filepath.Join(dir, "other.csv"), p}, false); err == nil || !errors.Is(err, fs.ErrExist) {
+		t.Errorf("CheckPaths: %v", err)
 	}
-	if err := CheckOutputs([]string{p}, true); err != nil {
-		t.Errorf("CheckOutputs with overwrite: %v", err)
+	if err := CheckPaths([]string{p}, true); err != nil {
+		t.Errorf("CheckPaths with overwrite: %v", err)
 	}
 	// With the flag the file is replaced.
-	if err := WriteFileAtomic(p, []byte("new"), true); err != nil {
+	if err := WriteFile(p, []byte("new"), true); err != nil {
 		t.Fatal(err)
 	}
 	if got := readString(t, p); got != "new" {
@@ -84,7 +84,7 @@ func TestNoOverwriteWithoutFlag(t *testing.T) {
 func TestNoOverwriteRace(t *testing.T) {
 	dir := t.TempDir()
 	p := filepath.Join(dir, "gate.json")
-	a, err := CreateAtomic(p, false)
+	a, err := Create(p, false)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -111,7 +111,7 @@ func TestWriteAtomicFailure(t *testing.T) {
 		fmt.Fprintln(w, strings.Repeat("half a row,", 1<<14)) // more than the buffer
 		return boom
 	}
-	err := WriteAtomic(p, false, write)
+	err := WriteWith(p, false, write)
 	if !errors.Is(err, boom) || !strings.Contains(err.Error(), p) {
 		t.Fatalf("err = %v", err)
 	}
@@ -119,7 +119,7 @@ func TestWriteAtomicFailure(t *testing.T) {
 		t.Errorf("output exists after failure: %v", err)
 	}
 	os.WriteFile(p, []byte("old"), 0o644)
-	if err := WriteAtomic(p, true, write); !errors.Is(err, boom) {
+	if err := WriteWith(p, true, write); !errors.Is(err, boom) {
 		t.Fatalf("err = %v", err)
 	}
 	if got := readString(t, p); got != "old" {
@@ -133,7 +133,7 @@ func TestWriteAtomicFailure(t *testing.T) {
 func TestAbort(t *testing.T) {
 	dir := t.TempDir()
 	p := filepath.Join(dir, "x.npy")
-	a, err := CreateAtomic(p, false)
+	a, err := Create(p, false)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -153,7 +153,7 @@ func TestAbort(t *testing.T) {
 	if err := a.Commit(); err == nil {
 		t.Error("Commit after Abort succeeded")
 	}
-	b, _ := CreateAtomic(p, false)
+	b, _ := Create(p, false)
 	io.WriteString(b, "done")
 	if err := b.Commit(); err != nil {
 		t.Fatal(err)
@@ -180,20 +180,20 @@ func TestOutputPathErrors(t *testing.T) {
 	}
 	for _, c := range cases {
 		for _, ow := range []bool{false, true} {
-			_, err := CreateAtomic(c.path, ow)
+			_, err := Create(c.path, ow)
 			if err == nil || !strings.Contains(err.Error(), c.frag) {
-				t.Errorf("CreateAtomic(%q, %v): %v; want %q", c.path, ow, err, c.frag)
+				t.Errorf("Create(%q, %v): %v; want %q", c.path, ow, err, c.frag)
 			}
 		}
 	}
-	if err := PrepareOutputDir(file); err == nil || !strings.Contains(err.Error(), "is a file, not a folder") {
-		t.Errorf("PrepareOutputDir(file): %v", err)
+	if err := PrepareDir(file); err == nil || !strings.Contains(err.Error(), "is a file, not a folder") {
+		t.Errorf("PrepareDir(file): %v", err)
 	}
 }
 
-func TestPrepareOutputDir(t *testing.T) {
+func TestPrepareDir(t *testing.T) {
 	dir := filepath.Join(t.TempDir(), "a", "b")
-	if err := PrepareOutputDir(dir); err != nil {
+	if err := PrepareDir(dir); err != nil {
 		t.Fatal(err)
 	}
 	entries, _ := os.ReadDir(dir)
@@ -210,21 +210,21 @@ func TestUnwritableFolder(t *testing.T) {
 		ro := filepath.Join(dir, "ro")
 		os.Mkdir(ro, 0o555)
 		defer os.Chmod(ro, 0o755)
-		if err := PrepareOutputDir(ro); err == nil || !strings.Contains(err.Error(), "cannot write in it") {
-			t.Errorf("PrepareOutputDir(read-only): %v", err)
+		if err := PrepareDir(ro); err == nil || !strings.Contains(err.Error(), "cannot write in it") {
+			t.Errorf("PrepareDir(read-only): %v", err)
 		}
-		if _, err := CreateAtomic(filepath.Join(ro, "g.json"), false); err == nil || !strings.Contains(err.Error(), "cannot write in folder") {
-			t.Errorf("CreateAtomic(read-only): %v", err)
+		if _, err := Create(filepath.Join(ro, "g.json"), false); err == nil || !strings.Contains(err.Error(), "cannot write in folder") {
+			t.Errorf("Create(read-only): %v", err)
 		}
 	}
 	if runtime.GOOS != "linux" {
 		return
 	}
-	if err := PrepareOutputDir("/proc/loopgate-out"); err == nil || !strings.Contains(err.Error(), "output folder /proc/loopgate-out: cannot") {
-		t.Errorf("PrepareOutputDir(/proc/...): %v", err)
+	if err := PrepareDir("/proc/loopgate-out"); err == nil || !strings.Contains(err.Error(), "output folder /proc/loopgate-out: cannot") {
+		t.Errorf("PrepareDir(/proc/...): %v", err)
 	}
-	if _, err := CreateAtomic("/proc/loopgate.json", false); err == nil || !strings.Contains(err.Error(), "cannot write in folder /proc") {
-		t.Errorf("CreateAtomic(/proc/...): %v", err)
+	if _, err := Create("/proc/loopgate.json", false); err == nil || !strings.Contains(err.Error(), "cannot write in folder /proc") {
+		t.Errorf("Create(/proc/...): %v", err)
 	}
 }
 
@@ -235,7 +235,7 @@ func TestKilledWriterLeavesNoOutput(t *testing.T) {
 		t.Skip("needs SIGKILL")
 	}
 	if path := os.Getenv("LOOPGATE_ATOMIC_HELPER"); path != "" {
-		a, err := CreateAtomic(path, false)
+		a, err := Create(path, false)
 		if err != nil {
 			os.Exit(3)
 		}
