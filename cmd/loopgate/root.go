@@ -309,7 +309,7 @@ func newStarterCmd() *cobra.Command {
 				return err
 			}
 			if err := design.WriteOutput(out, b, overwrite); err != nil {
-				return err
+				return finish(err)
 			}
 			if asJSON {
 				return printJSON(cmd.OutOrStdout(), map[string]string{"preset": args[0], "file": out})
