@@ -5,7 +5,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"math/cmplx"
 
 	"github.com/loopgate/loopgate/design/spec"
 	"github.com/loopgate/loopgate/holonomy"
@@ -199,16 +198,14 @@ func embedBlock(dst, u *holonomy.Mat, comp []int) {
 	}
 }
 
-// adiabaticityProduct returns max over the loop of
-// ‖P_W ∂ₛH|n⟩‖/(E_W − E_n)² at unit amplitude, where W is the working
-// subspace (the eigenvectors with most weight on the computational levels
-// at s = 0, tracked by their places in the ascending spectrum) and n runs
-// over the other eigenstates; ∂ₛH is a central difference.
+// adiabaticityProduct returns max over the loop of the adiabaticity ratio
+// ‖P_C ∂ₛH|n⟩‖/(E_C − E_n)² at unit amplitude (holonomy.Spectrum), where
+// the working clusters C are chosen by their weight on the computational
+// levels at s = 0 and tracked by their places in the ascending spectrum,
+// and n runs over the other eigenstates; ∂ₛH is a central difference.
 func adiabaticityProduct(sc *holonomy.Scheme, loop holonomy.Loop, n int) (float64, error) {
 	dim := sc.Dim()
-	eig := holonomy.NewEigen(dim)
-	vals := make([]float64, dim)
-	v := holonomy.NewMat(dim, dim)
+	sp := holonomy.NewSpectrum(sc)
 	h, hp, hm := holonomy.NewMat(dim, dim), holonomy.NewMat(dim, dim), holonomy.NewMat(dim, dim)
 	p := sc.NewPoint()
 	at := func(dst *holonomy.Mat, s float64) {
@@ -219,28 +216,12 @@ func adiabaticityProduct(sc *holonomy.Scheme, loop holonomy.Loop, n int) (float6
 		loop(s, p)
 		sc.Hamiltonian(dst, p)
 	}
-	// Working places: the len(Computational) eigenvectors with the most
-	// computational weight at s = 0.
 	at(h, 0)
-	eig.Factorize(h, vals, v)
-	k := len(sc.Computational)
-	weight := make([]float64, dim)
-	for j := 0; j < dim; j++ {
-		for _, c := range sc.Computational {
-			a := v.At(c, j)
-			weight[j] += real(a)*real(a) + imag(a)*imag(a)
-		}
+	sp.Factorize(h)
+	if err := sp.ChooseWorking(); err != nil {
+		return 0, err
 	}
-	work := make([]bool, dim)
-	for t := 0; t < k; t++ {
-		best := -1
-		for j := 0; j < dim; j++ {
-			if !work[j] && (best < 0 || weight[j] > weight[best]) {
-				best = j
-			}
-		}
-		work[best] = true
-	}
+	work := append([][2]int(nil), sp.Working()...)
 	ds := 1 / float64(n)
 	var kappa float64
 	for i := 0; i < n; i++ {
@@ -248,29 +229,16 @@ func adiabaticityProduct(sc *holonomy.Scheme, loop holonomy.Loop, n int) (float6
 		at(h, s)
 		at(hp, s+ds/2)
 		at(hm, s-ds/2)
-		eig.Factorize(h, vals, v)
-		for m := 0; m < dim; m++ {
-			if !work[m] {
-				continue
-			}
-			for q := 0; q < dim; q++ {
-				if work[q] {
-					continue
-				}
-				gap := vals[m] - vals[q]
-				if math.Abs(gap) < 1e-12 {
-					return 0, fmt.Errorf("the gap closes near s = %.4f", s)
-				}
-				var el complex128
-				for a := 0; a < dim; a++ {
-					for b := 0; b < dim; b++ {
-						dh := (hp.At(a, b) - hm.At(a, b)) / complex(ds, 0)
-						el += cmplx.Conj(v.At(a, m)) * dh * v.At(b, q)
-					}
-				}
-				kappa = math.Max(kappa, cmplx.Abs(el)/(gap*gap))
-			}
+		for k := range hp.Data {
+			hp.Data[k] = (hp.Data[k] - hm.Data[k]) / complex(ds, 0)
 		}
+		sp.Factorize(h)
+		sp.SetWorking(work)
+		k, _ := sp.AdiabaticRatio(hp, 1e-9*(holonomy.FrobeniusNorm(hp)+1e-300))
+		if math.IsInf(k, 1) {
+			return 0, fmt.Errorf("the gap closes near s = %.4f", s)
+		}
+		kappa = math.Max(kappa, k)
 	}
 	return kappa, nil
 }

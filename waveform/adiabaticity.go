@@ -22,7 +22,7 @@ import (
 func (w *Waveform) MeasureAdiabaticity() (float64, error) {
 	sc := w.Scheme
 	n := sc.Dim()
-	sp := newSpectrum(sc)
+	sp := holonomy.NewSpectrum(sc)
 	h, hp, hm := holonomy.NewMat(n, n), holonomy.NewMat(n, n), holonomy.NewMat(n, n)
 	pt := sc.NewPoint()
 	set := func(dst *holonomy.Mat, k int) {
@@ -41,11 +41,11 @@ func (w *Waveform) MeasureAdiabaticity() (float64, error) {
 		loop0, loop1 := span.First+span.Ramp, span.First+span.Len-span.Ramp
 		// Working clusters of the loop, chosen at its first sample.
 		set(h, loop0)
-		sp.factor(h)
-		if err := sp.choose(); err != nil {
+		sp.Factorize(h)
+		if err := sp.ChooseWorking(); err != nil {
 			return 0, fmt.Errorf("segment %d, first loop sample %d: %w", si, loop0, err)
 		}
-		loopWork := append([][2]int(nil), sp.work...)
+		loopWork := append([][2]int(nil), sp.Working()...)
 		for k := span.First + 1; k < span.First+span.Len-1; k++ {
 			set(h, k)
 			set(hp, k+1)
@@ -53,16 +53,16 @@ func (w *Waveform) MeasureAdiabaticity() (float64, error) {
 			for i := range hp.Data {
 				hp.Data[i] = (hp.Data[i] - hm.Data[i]) / complex(2*dt, 0)
 			}
-			sp.factor(h)
+			sp.Factorize(h)
 			if k >= loop0 && k < loop1 {
-				sp.work = append(sp.work[:0], loopWork...)
-			} else if err := sp.choose(); err != nil {
+				sp.SetWorking(loopWork)
+			} else if err := sp.ChooseWorking(); err != nil {
 				return 0, fmt.Errorf("segment %d, ramp sample %d: %w", si, k, err)
 			}
 			thr := 1e-9 * (holonomy.FrobeniusNorm(hp) + 1e-300)
-			kappa, gap := sp.coupling(hp, thr)
-			if math.IsInf(kappa, 1) || (k >= loop0 && k < loop1 && gap <= sp.tol()) {
-				return 0, fmt.Errorf("segment %d, sample %d: %w", si, k, &holonomy.GapError{S: float64(k-loop0) / float64(max(1, loop1-loop0)), V: math.NaN(), Gap: gap, Tol: sp.tol()})
+			kappa, gap := sp.AdiabaticRatio(hp, thr)
+			if math.IsInf(kappa, 1) || (k >= loop0 && k < loop1 && gap <= sp.Tol()) {
+				return 0, fmt.Errorf("segment %d, sample %d: %w", si, k, &holonomy.GapError{S: float64(k-loop0) / float64(max(1, loop1-loop0)), V: math.NaN(), Gap: gap, Tol: sp.Tol()})
 			}
 			alpha = math.Max(alpha, kappa)
 		}

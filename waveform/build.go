@@ -213,7 +213,7 @@ type builder struct {
 	hw    Hardware
 	alpha float64
 	slew  float64 // slew rate the timing plans for, Hz/s (see plannedSlew)
-	sp    *spectrum
+	sp    *holonomy.Spectrum
 	h, dh *holonomy.Mat
 	pt    holonomy.Point
 	tmp   holonomy.Point
@@ -244,7 +244,7 @@ func Build(p *Plan, hw Hardware) (*Waveform, error) {
 	bare := SchemeFromHz(sc, make([]float64, len(hz)))
 	b := &builder{
 		sc: sc, bare: bare, hw: hw, alpha: ScheduleMargin * p.adiabaticity(), slew: slew,
-		sp: newSpectrum(sc),
+		sp: holonomy.NewSpectrum(sc),
 		h:  holonomy.NewMat(sc.Dim(), sc.Dim()), dh: holonomy.NewMat(sc.Dim(), sc.Dim()),
 		pt: sc.NewPoint(), tmp: sc.NewPoint(),
 	}
@@ -464,11 +464,11 @@ func (b *builder) timeAdiabatic(seg Segment) (*timing, error) {
 	// Working clusters at the base point.
 	la.setPoint(b.pt, amp, la.pts)
 	b.sc.Hamiltonian(b.h, b.pt)
-	b.sp.factor(b.h)
-	if err := b.sp.choose(); err != nil {
+	b.sp.Factorize(b.h)
+	if err := b.sp.ChooseWorking(); err != nil {
 		return nil, fmt.Errorf("at the base point: %w", err)
 	}
-	t.clusters = len(b.sp.work)
+	t.clusters = len(b.sp.Working())
 	// Cost density on the grid (one-sided derivatives at the ends).
 	cost := make([]float64, G+1)
 	for i := 0; i <= G; i++ {
@@ -542,11 +542,11 @@ func (b *builder) timeAdiabatic(seg Segment) (*timing, error) {
 		a := amp * float64(m) / rampGrid
 		la.setPoint(b.pt, a, la.pts)
 		b.sc.Hamiltonian(b.h, b.pt)
-		b.sp.factor(b.h)
-		if err := b.sp.choose(); err != nil {
+		b.sp.Factorize(b.h)
+		if err := b.sp.ChooseWorking(); err != nil {
 			return nil, fmt.Errorf("on the amplitude ramp at %.3g of full amplitude: %w", float64(m)/rampGrid, err)
 		}
-		k, _ := b.sp.coupling(b.dh, thr)
+		k, _ := b.sp.AdiabaticRatio(b.dh, thr)
 		if math.IsInf(k, 1) {
 			return nil, fmt.Errorf("on the amplitude ramp at %.3g of full amplitude the computational levels are degenerate with a state they are coupled to: %w", float64(m)/rampGrid, holonomy.ErrNoSubspace)
 		}
@@ -640,13 +640,13 @@ func (la *loopAnalysis) cost(s float64, side int) (float64, float64, error) {
 	la.at(s, la.p)
 	la.setPoint(b.pt, la.amp, la.p)
 	b.sc.Hamiltonian(b.h, b.pt)
-	b.sp.factor(b.h)
+	b.sp.Factorize(b.h)
 	la.deriv(s, side)
 	la.setPoint(b.pt, la.amp, la.dv)
 	b.bare.Hamiltonian(b.dh, b.pt)
 	thr := 1e-9 * (holonomy.FrobeniusNorm(b.dh) + 1e-300)
-	kappa, gap := b.sp.coupling(b.dh, thr)
-	if tol := b.sp.tol(); gap <= tol || math.IsInf(kappa, 1) {
+	kappa, gap := b.sp.AdiabaticRatio(b.dh, thr)
+	if tol := b.sp.Tol(); gap <= tol || math.IsInf(kappa, 1) {
 		return 0, gap, &holonomy.GapError{S: s, V: math.NaN(), Gap: gap, Tol: tol}
 	}
 	var du float64
@@ -875,20 +875,20 @@ func (b *builder) clusterPhase(w *Waveform, nr, n int) (total, loop float64, err
 	var loopWork [][2]int
 	for k := 0; k < n; k++ {
 		set(b.h, k)
-		b.sp.factor(b.h)
+		b.sp.Factorize(b.h)
 		inLoop := k >= nr && k < n-nr
 		if inLoop && loopWork != nil {
-			b.sp.work = append(b.sp.work[:0], loopWork...)
+			b.sp.SetWorking(loopWork)
 		} else {
-			if err := b.sp.choose(); err != nil {
+			if err := b.sp.ChooseWorking(); err != nil {
 				return 0, 0, fmt.Errorf("sample %d of the segment: %w", k, err)
 			}
 			if inLoop {
-				loopWork = append([][2]int(nil), b.sp.work...)
+				loopWork = append([][2]int(nil), b.sp.Working()...)
 			}
 		}
-		if len(b.sp.work) != 2 {
-			return 0, 0, fmt.Errorf("sample %d of the segment: %d working clusters where the base point has 2", k, len(b.sp.work))
+		if len(b.sp.Working()) != 2 {
+			return 0, 0, fmt.Errorf("sample %d of the segment: %d working clusters where the base point has 2", k, len(b.sp.Working()))
 		}
 		// ∂_tH by central differences (one-sided at the ends).
 		kp, km := min(k+1, n-1), max(k-1, 0)
@@ -897,12 +897,11 @@ func (b *builder) clusterPhase(w *Waveform, nr, n int) (total, loop float64, err
 		for i := range hp.Data {
 			hp.Data[i] = (hp.Data[i] - hm.Data[i]) / complex(float64(kp-km)*dt, 0)
 		}
-		holonomy.MulAH(b.sp.tmp, b.sp.v, hp)
-		holonomy.Mul(b.sp.d, b.sp.tmp, b.sp.v)
+		dv, vals := b.sp.InEigenbasis(hp), b.sp.Values()
 		energy := func(r [2]int) float64 {
 			var e float64
 			for i := r[0]; i < r[1]; i++ {
-				e += b.sp.vals[i]
+				e += vals[i]
 			}
 			e /= float64(r[1] - r[0])
 			var shift float64
@@ -910,15 +909,15 @@ func (b *builder) clusterPhase(w *Waveform, nr, n int) (total, loop float64, err
 				if j >= r[0] && j < r[1] {
 					continue
 				}
-				de := e - b.sp.vals[j]
+				de := e - vals[j]
 				for m := r[0]; m < r[1]; m++ {
-					x := b.sp.d.Data[m*dim+j]
+					x := dv.Data[m*dim+j]
 					shift += (real(x)*real(x) + imag(x)*imag(x)) / (de * de * de)
 				}
 			}
 			return e + shift/float64(r[1]-r[0])
 		}
-		d := (energy(b.sp.work[1]) - energy(b.sp.work[0])) * dt
+		d := (energy(b.sp.Working()[1]) - energy(b.sp.Working()[0])) * dt
 		total += d
 		if inLoop {
 			loop += d

@@ -1,63 +1,84 @@
-package waveform
+package holonomy
 
 import (
 	"fmt"
 	"math"
-
-	"github.com/loopgate/loopgate/holonomy"
 )
 
-// spectrum is a workspace for the eigendecomposition of H and for the
-// adiabatic couplings between the working states and the rest. It does not
-// allocate after construction.
-type spectrum struct {
+// Spectrum is a workspace for the eigendecomposition of H along a path in
+// control space and for the adiabaticity ratio between the working states
+// and the rest (AdiabaticRatio). It is the one home of that ratio: the
+// timing, the verification and the loop check all use it. It does not
+// allocate after NewSpectrum.
+type Spectrum struct {
 	n, k int
 	comp []int
-	eig  *holonomy.Eigen
+	eig  *Eigen
 	vals []float64
-	v    *holonomy.Mat // eigenvectors in columns, ascending eigenvalues
-	tmp  *holonomy.Mat
-	d    *holonomy.Mat // V† ∂H V
+	v    *Mat // eigenvectors in columns, ascending eigenvalues
+	tmp  *Mat
+	d    *Mat // V† ∂H V
 
 	// work holds the working clusters as half-open ranges [lo, hi) of
 	// sorted eigenvalue indices.
 	work  [][2]int
-	group [][2]int // scratch for choose
+	group [][2]int // scratch for ChooseWorking
 	taken []bool
 }
 
-func newSpectrum(s *holonomy.Scheme) *spectrum {
+// NewSpectrum returns a workspace for the Hamiltonians of s.
+func NewSpectrum(s *Scheme) *Spectrum {
 	n := s.Dim()
-	return &spectrum{
+	return &Spectrum{
 		n: n, k: len(s.Computational), comp: s.Computational,
-		eig:   holonomy.NewEigen(n),
+		eig:   NewEigen(n),
 		vals:  make([]float64, n),
-		v:     holonomy.NewMat(n, n),
-		tmp:   holonomy.NewMat(n, n),
-		d:     holonomy.NewMat(n, n),
+		v:     NewMat(n, n),
+		tmp:   NewMat(n, n),
+		d:     NewMat(n, n),
 		work:  make([][2]int, 0, n),
 		group: make([][2]int, 0, n),
 		taken: make([]bool, n),
 	}
 }
 
-// factor diagonalises h.
-func (sp *spectrum) factor(h *holonomy.Mat) { sp.eig.Factorize(h, sp.vals, sp.v) }
+// Factorize diagonalises h.
+func (sp *Spectrum) Factorize(h *Mat) { sp.eig.Factorize(h, sp.vals, sp.v) }
 
-// tol returns the degeneracy and gap tolerance: 1e-6 × spectral radius,
+// Values returns the eigenvalues of the last Factorize in ascending order
+// (the workspace's slice; do not modify it).
+func (sp *Spectrum) Values() []float64 { return sp.vals }
+
+// Working returns the working clusters as half-open ranges [lo, hi) of
+// indices into Values, in ascending order (the workspace's slice).
+func (sp *Spectrum) Working() [][2]int { return sp.work }
+
+// SetWorking sets the working clusters, e.g. to follow the clusters chosen
+// at one point by their places in the spectrum.
+func (sp *Spectrum) SetWorking(w [][2]int) { sp.work = append(sp.work[:0], w...) }
+
+// InEigenbasis returns V†·dh·V for the eigenvectors V of the last
+// Factorize, in the workspace (overwritten by the next call).
+func (sp *Spectrum) InEigenbasis(dh *Mat) *Mat {
+	MulAH(sp.tmp, sp.v, dh)
+	Mul(sp.d, sp.tmp, sp.v)
+	return sp.d
+}
+
+// Tol returns the degeneracy and gap tolerance: 1e-6 × spectral radius,
 // the default of the holonomy engine.
-func (sp *spectrum) tol() float64 {
+func (sp *Spectrum) Tol() float64 {
 	return 1e-6 * math.Max(math.Abs(sp.vals[0]), math.Abs(sp.vals[sp.n-1]))
 }
 
-// choose picks the working clusters at the current point: eigenvalues
+// ChooseWorking picks the working clusters at the current point: eigenvalues
 // closer than tol are grouped, every group is weighted by the mean weight
 // of its eigenvectors on the computational levels, and the heaviest groups
 // are taken until they hold k states. It fails when that cannot be done
 // with whole groups or when the chosen states have less than half their
 // weight on the computational levels.
-func (sp *spectrum) choose() error {
-	n, tol := sp.n, sp.tol()
+func (sp *Spectrum) ChooseWorking() error {
+	n, tol := sp.n, sp.Tol()
 	sp.group = sp.group[:0]
 	lo := 0
 	for i := 1; i <= n; i++ {
@@ -84,7 +105,7 @@ func (sp *spectrum) choose() error {
 		}
 		r := sp.group[best]
 		if count+r[1]-r[0] > sp.k {
-			return fmt.Errorf("the computational levels are degenerate with other states (a group of %d degenerate states where %d are needed): %w", r[1]-r[0], sp.k-count, holonomy.ErrNoSubspace)
+			return fmt.Errorf("the computational levels are degenerate with other states (a group of %d degenerate states where %d are needed): %w", r[1]-r[0], sp.k-count, ErrNoSubspace)
 		}
 		sp.taken[best] = true
 		sp.work = append(sp.work, r)
@@ -92,7 +113,7 @@ func (sp *spectrum) choose() error {
 		wsum += bw * float64(r[1]-r[0])
 	}
 	if wsum/float64(sp.k) < 0.5 {
-		return fmt.Errorf("the eigenstates closest to the computational levels have only %.2f of their weight on them: %w", wsum/float64(sp.k), holonomy.ErrNoSubspace)
+		return fmt.Errorf("the eigenstates closest to the computational levels have only %.2f of their weight on them: %w", wsum/float64(sp.k), ErrNoSubspace)
 	}
 	// Keep the clusters in ascending order.
 	for i := 1; i < len(sp.work); i++ {
@@ -105,7 +126,7 @@ func (sp *spectrum) choose() error {
 
 // weight returns the mean weight on the computational levels of the
 // eigenvectors in r.
-func (sp *spectrum) weight(r [2]int) float64 {
+func (sp *Spectrum) weight(r [2]int) float64 {
 	var w float64
 	for i := r[0]; i < r[1]; i++ {
 		for _, c := range sp.comp {
@@ -116,15 +137,14 @@ func (sp *spectrum) weight(r [2]int) float64 {
 	return w / float64(r[1]-r[0])
 }
 
-// coupling returns, for the current eigendecomposition and working
-// clusters, κ = max over working clusters C and states j outside C of
+// AdiabaticRatio returns, for the current eigendecomposition and working
+// clusters, the adiabaticity ratio κ = max over working clusters C and states j outside C of
 // ‖P_C ∂H|j⟩‖/(E_C − E_j)², and the smallest gap |E_C − E_j|. Couplings
 // below thr are treated as zero. When a state j outside C is within the
 // degeneracy tolerance of C while coupled to it, κ is +Inf.
-func (sp *spectrum) coupling(dh *holonomy.Mat, thr float64) (kappa, gap float64) {
-	holonomy.MulAH(sp.tmp, sp.v, dh)
-	holonomy.Mul(sp.d, sp.tmp, sp.v)
-	n, tol := sp.n, sp.tol()
+func (sp *Spectrum) AdiabaticRatio(dh *Mat, thr float64) (kappa, gap float64) {
+	sp.InEigenbasis(dh)
+	n, tol := sp.n, sp.Tol()
 	gap = math.Inf(1)
 	for _, r := range sp.work {
 		var ec float64
