@@ -45,7 +45,7 @@ func (c Check) String() string {
 	if !c.Pass {
 		verdict = "FAIL"
 	}
-	return fmt.Sprintf("%s: %s %s %s (margin %s) %s", c.Name, fmtUnit(c.Value, c.Unit), op, fmtUnit(c.Limit, c.Unit), fmtUnit(c.Margin, c.Unit), verdict)
+	return fmt.Sprintf("%s: %s %s %s (margin %s) %s", c.Name, FormatSI(c.Value, c.Unit), op, FormatSI(c.Limit, c.Unit), FormatSI(c.Margin, c.Unit), verdict)
 }
 
 // HardwareChecks checks the quantised waveform against every hardware

@@ -8,29 +8,12 @@ import (
 	"testing"
 
 	"github.com/loopgate/loopgate/holonomy"
+	"github.com/loopgate/loopgate/holonomy/holonomytest"
 	"github.com/loopgate/loopgate/waveform"
 	"github.com/loopgate/loopgate/waveform/internal/wavetest"
 	"github.com/loopgate/loopgate/waveform/robust"
 	"github.com/loopgate/loopgate/waveform/sim"
 )
-
-// rbPhaseDistance returns min over global phases of ‖a − e^{iχ}b‖_F.
-func rbPhaseDistance(a, b *holonomy.Mat) float64 {
-	var ip complex128
-	for i, v := range a.Data {
-		ip += cmplx.Conj(b.Data[i]) * v
-	}
-	ph := complex(1, 0)
-	if cmplx.Abs(ip) > 0 {
-		ph = ip / complex(cmplx.Abs(ip), 0)
-	}
-	var s float64
-	for i, v := range a.Data {
-		d := v - ph*b.Data[i]
-		s += real(d)*real(d) + imag(d)*imag(d)
-	}
-	return math.Sqrt(s)
-}
 
 func TestAdvantageDecomposeQubit(t *testing.T) {
 	r := 1 / math.Sqrt2
@@ -49,7 +32,7 @@ func TestAdvantageDecomposeQubit(t *testing.T) {
 		if err != nil {
 			t.Fatalf("%s: %v", name, err)
 		}
-		if d := rbPhaseDistance(p.Unitary(), u); d > 1e-12 {
+		if d := holonomytest.PhaseDistance(p.Unitary(), u); d > 1e-12 {
 			t.Errorf("%s: %v reconstructs U to %.3g", name, p, d)
 		}
 		if p.Area < 0 || p.Area > math.Pi+1e-15 || math.Abs(p.Phase) > math.Pi || math.Abs(p.ZAngle) > math.Pi {
@@ -65,14 +48,8 @@ func TestAdvantageDecomposeQubit(t *testing.T) {
 	}
 	rng := rand.New(rand.NewPCG(7, 11))
 	for k := 0; k < 200; k++ {
-		// Random unitary from random Euler angles and a global phase.
-		a, b, c, g := rng.Float64()*4*math.Pi, rng.Float64()*math.Pi, rng.Float64()*4*math.Pi, rng.Float64()*2*math.Pi
-		p0 := DynamicalPulse{Area: b, Phase: c, ZAngle: a}
-		u := p0.Unitary()
-		for i := range u.Data {
-			u.Data[i] *= cmplx.Rect(1, g)
-		}
-		check("random", u)
+		// Haar-random unitary: independent of the pulse parametrisation.
+		check("random", holonomytest.RandomQubitUnitary(rng))
 	}
 	if _, err := DecomposeQubit(holonomy.NewMatFrom(2, 2, []complex128{1, 1, 0, 1})); err == nil {
 		t.Error("non-unitary target: no error")
