@@ -36,8 +36,14 @@ type decoder struct {
 	probs []Problem
 }
 
+// bad records an ErrInvalid problem.
 func (d *decoder) bad(path, format string, args ...any) {
-	d.probs = append(d.probs, Problem{Path: path, Msg: fmt.Sprintf(format, args...)})
+	d.badErr(path, ErrInvalid, format, args...)
+}
+
+// badErr records a problem of kind err (a sentinel).
+func (d *decoder) badErr(path string, err error, format string, args ...any) {
+	d.probs = append(d.probs, Problem{Path: path, Msg: fmt.Sprintf(format, args...), Err: err})
 }
 
 func mapAt(m map[string]any, key string) map[string]any {
@@ -82,7 +88,7 @@ func (d *decoder) quantityValue(v any, path string, dim Dimension) (float64, boo
 	case string:
 		q, err := ParseQuantity(x, dim)
 		if err != nil {
-			d.bad(path, "%v", err)
+			d.badErr(path, ErrBadUnit, "%v", err)
 			return 0, false
 		}
 		return q, true
@@ -131,7 +137,7 @@ func (d *decoder) perChannel(m map[string]any, key, path string, dim Dimension, 
 	for _, name := range sortedKeys(mm) {
 		i := indexOf(chans, name)
 		if i < 0 {
-			d.bad(childPath(p, name), "no channel %q in the scheme; its channels are %s", name, strings.Join(chans, ", "))
+			d.badErr(childPath(p, name), ErrUnknownKey, "no channel %q in the scheme; its channels are %s", name, strings.Join(chans, ", "))
 			continue
 		}
 		seen[i] = true
@@ -141,7 +147,7 @@ func (d *decoder) perChannel(m map[string]any, key, path string, dim Dimension, 
 	}
 	for i, ok := range seen {
 		if !ok && math.IsNaN(def) {
-			d.bad(p, "no value for channel %q; give one value for all channels or one for each of %s", chans[i], strings.Join(chans, ", "))
+			d.badErr(p, ErrMissing, "no value for channel %q; give one value for all channels or one for each of %s", chans[i], strings.Join(chans, ", "))
 		}
 	}
 	return out
@@ -404,7 +410,7 @@ func (d *decoder) preset(s *Spec, m map[string]any, path, preset string) {
 	case "spin":
 		v, ok := m["spin"]
 		if !ok {
-			d.bad(path+".spin", "missing; the spin preset needs the spin s, e.g. spin: 1 or spin: \"3/2\"")
+			d.badErr(path+".spin", ErrMissing, "missing; the spin preset needs the spin s, e.g. spin: 1 or spin: \"3/2\"")
 			return
 		}
 		twoS, err := parseSpin(v)

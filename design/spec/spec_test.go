@@ -414,8 +414,8 @@ func TestProblemDedupAndOrder(t *testing.T) {
 		t.Fatal(err)
 	}
 	want := []Problem{
-		{Path: "hardware.max_rabi", Line: 6, Col: 13, Msg: "must be positive; found -10 MHz"},
-		{Path: "hardware.full_scale", Line: 11, Col: 15, Msg: "must be positive; found 0 Hz"},
+		{Path: "hardware.max_rabi", Line: 6, Col: 13, Msg: "must be positive; found -10 MHz", Err: ErrOutOfBounds},
+		{Path: "hardware.full_scale", Line: 11, Col: 15, Msg: "must be positive; found 0 Hz", Err: ErrOutOfBounds},
 	}
 	if !reflect.DeepEqual(se.Problems, want) {
 		t.Errorf("problems\n%+v\nwant\n%+v", se.Problems, want)
