@@ -299,8 +299,8 @@ func timeLoop(spc *spec.Spec, plan *waveform.Plan, log io.Writer) (*waveform.Wav
 func hardwareFailures(v *sim.Verification) (long, other bool) {
 	for _, c := range v.Checks {
 		switch {
-		case c.Pass || c.Name == "fidelity" || c.Name == "adiabaticity":
-		case c.Name == "duration" || c.Name == "sample count":
+		case c.Pass || !c.Kind.Hardware():
+		case c.Kind.Long():
 			long = true
 		default:
 			other = true

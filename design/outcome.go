@@ -120,14 +120,19 @@ type Figures struct {
 
 // CheckRow is one check: value, limit, margin and verdict.
 type CheckRow struct {
-	Name   string  `json:"name"`
-	Value  float64 `json:"value"`
-	Limit  float64 `json:"limit"`
-	Margin float64 `json:"margin"`
-	Unit   string  `json:"unit"`
-	Bound  string  `json:"bound"`
-	Pass   bool    `json:"pass"`
+	// Kind says what is checked (not printed: Name says it in words).
+	Kind   waveform.CheckKind `json:"-"`
+	Name   string             `json:"name"`
+	Value  float64            `json:"value"`
+	Limit  float64            `json:"limit"`
+	Margin float64            `json:"margin"`
+	Unit   string             `json:"unit"`
+	Bound  string             `json:"bound"`
+	Pass   bool               `json:"pass"`
 }
+
+// IsFidelity reports whether the row is the fidelity goal.
+func (c CheckRow) IsFidelity() bool { return c.Kind == waveform.FidelityCheck }
 
 // BudgetRow is one line of the error budget.
 type BudgetRow struct {
@@ -180,7 +185,7 @@ func newOutcome(cmd, source, title, target string, w *waveform.Waveform, a *anal
 		if c.Lower {
 			bound = "min"
 		}
-		o.Checks = append(o.Checks, CheckRow{Name: c.Name, Value: c.Value, Limit: c.Limit, Margin: c.Margin, Unit: c.Unit, Bound: bound, Pass: c.Pass})
+		o.Checks = append(o.Checks, CheckRow{Kind: c.Kind, Name: c.Name, Value: c.Value, Limit: c.Limit, Margin: c.Margin, Unit: c.Unit, Bound: bound, Pass: c.Pass})
 	}
 	for _, b := range a.budget {
 		o.Budget = append(o.Budget, BudgetRow{Term: b.Term, Infidelity: b.Infidelity, Note: b.Note, Total: b.Total})

@@ -126,7 +126,7 @@ func plannedSlew(hw *Hardware) (float64, error) {
 	floor := 2 * lsb * hw.SampleRate
 	slew := math.Min(slewUse*hw.MaxSlew, hw.MaxSlew-floor)
 	if slew <= 0 {
-		return 0, &LimitError{Check: NewCheck("slew rate (two DAC steps per sample)", floor, hw.MaxSlew, "Hz/s", BoundMax)}
+		return 0, &LimitError{Check: NewCheck(SlewCheck, "slew rate (two DAC steps per sample)", floor, hw.MaxSlew, "Hz/s")}
 	}
 	return slew, nil
 }
@@ -275,7 +275,7 @@ func Build(p *Plan, hw Hardware) (*Waveform, error) {
 		limit, what = MaxSampleLimit, "sample count (waveform file bound)"
 	}
 	if n0 > limit || n > limit {
-		return nil, &LimitError{Check: NewCheck(what, float64(n), float64(limit), "", BoundMax)}
+		return nil, &LimitError{Check: NewCheck(SampleCountCheck, what, float64(n), float64(limit), "")}
 	}
 	w := &Waveform{
 		Scheme:       sc,

@@ -70,11 +70,11 @@ func TestHardwareChecksPass(t *testing.T) {
 			t.Errorf("failed: %v", c)
 		}
 	}
-	c, _ := wavetest.FindCheck(v.Checks, "slew rate pa")
+	c, _ := wavetest.FindCheck(v.Checks, waveform.SlewCheck, "pa")
 	if c.Value < 0.8*hw.MaxSlew {
 		t.Errorf("slew limit does not bind: %v", c)
 	}
-	c, _ = wavetest.FindCheck(v.Checks, "peak Rabi frequency pa")
+	c, _ = wavetest.FindCheck(v.Checks, waveform.PeakRabiCheck, "pa")
 	if c.Value < 0.99*hw.MaxRabi[2] {
 		t.Errorf("amplitude limit not used: %v", c)
 	}
@@ -93,10 +93,13 @@ func TestHardwareViolations(t *testing.T) {
 	w.Hardware.MaxSlew = 1e12
 	w.CodeQ[0][100] = 9000 // beyond the 14-bit range
 	v := wavetest.Must(sim.Verify(w, sim.ErrorModel{}))(t)
-	for _, name := range []string{"peak Rabi frequency pa", "slew rate pa", "DAC code range p0"} {
-		c, ok := wavetest.FindCheck(v.Checks, name)
+	for _, want := range []struct {
+		kind    waveform.CheckKind
+		channel string
+	}{{waveform.PeakRabiCheck, "pa"}, {waveform.SlewCheck, "pa"}, {waveform.DACRangeCheck, "p0"}} {
+		c, ok := wavetest.FindCheck(v.Checks, want.kind, want.channel)
 		if !ok || c.Pass || c.Margin >= 0 {
-			t.Errorf("%s: %v (found %v)", name, c, ok)
+			t.Errorf("%v: %v (found %v)", want, c, ok)
 		}
 	}
 	if v.Pass() {
@@ -112,7 +115,7 @@ func TestHardwareViolations(t *testing.T) {
 	hw.MaxDuration = 1e-6
 	w = wavetest.MustBuild(t, wavetest.TripodPlan(math.Pi/4, 0.05), hw)
 	v = wavetest.Must(sim.Verify(w, sim.ErrorModel{}))(t)
-	c, _ := wavetest.FindCheck(v.Checks, "duration")
+	c, _ := wavetest.FindCheck(v.Checks, waveform.DurationCheck, "")
 	if c.Pass || c.Margin > -2e-6 {
 		t.Errorf("duration check: %v", c)
 	}
@@ -122,7 +125,7 @@ func TestHardwareViolations(t *testing.T) {
 	hw.MaxSamples = 1000
 	_, err := waveform.Build(wavetest.TripodPlan(math.Pi/4, 0.05), hw)
 	var le *waveform.LimitError
-	if !errors.As(err, &le) || le.Check.Name != "sample count" || le.Check.Margin >= 0 {
+	if !errors.As(err, &le) || le.Check.Kind != waveform.SampleCountCheck || le.Check.Margin >= 0 {
 		t.Errorf("sample limit: %v", err)
 	} else {
 		t.Log(err)
@@ -146,7 +149,7 @@ func TestDurationAndFullScale(t *testing.T) {
 		t.Errorf("failed: %v", v.Failed())
 	}
 	for _, c := range v.Checks {
-		if c.Name == "peak Rabi frequency p1" && c.Value > 4e6 {
+		if c.Kind == waveform.PeakRabiCheck && c.Channel == "p1" && c.Value > 4e6 {
 			t.Errorf("peak %g above the full scale", c.Value)
 		}
 	}
@@ -197,4 +200,28 @@ func fixedPoint(s float64, p holonomy.Point) { p.Drive[2] = 1 }
 // there, so the qubit level g1 is degenerate with the auxiliary level.
 func degenerateBase(s float64, p holonomy.Point) {
 	holonomy.TripodPoint(p, 1, math.Pi/2*(1-math.Cos(2*math.Pi*s))/2+math.Pi/2, 0)
+}
+
+// CheckKindOf reads back the kind and channel of every check that Verify
+// and HardwareChecks write, so that a file storing only names loses
+// nothing; unknown names have kind 0.
+func TestCheckKindOf(t *testing.T) {
+	w := wavetest.MustBuild(t, wavetest.TripodPlan(math.Pi/4, 0.05), wavetest.Hardware(3, 10e6))
+	v := wavetest.Must(sim.Verify(w, sim.ErrorModel{}))(t)
+	seen := map[waveform.CheckKind]bool{}
+	for _, c := range v.Checks {
+		t.Run(c.Name, func(t *testing.T) {
+			k, ch := waveform.CheckKindOf(c.Name)
+			if k != c.Kind || ch != c.Channel || k.Lower() != c.Lower {
+				t.Errorf("CheckKindOf(%q) = %v, %q; the check has %v, %q", c.Name, k, ch, c.Kind, c.Channel)
+			}
+		})
+		seen[c.Kind] = true
+	}
+	if len(seen) != 9 {
+		t.Errorf("%d kinds of check, want all 9", len(seen))
+	}
+	if k, _ := waveform.CheckKindOf("colour"); k != 0 {
+		t.Errorf("unknown name: kind %v", k)
+	}
 }

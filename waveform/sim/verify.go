@@ -108,9 +108,9 @@ func Verify(w *waveform.Waveform, m ErrorModel) (*Verification, error) {
 	if m.ChannelErrors != nil {
 		v.Model.ChannelErrors = append([]float64(nil), m.ChannelErrors...)
 	}
-	v.Checks = append(v.Checks, waveform.NewCheck("fidelity", out.Fidelity, w.MinFidelity, "", waveform.BoundMin))
+	v.Checks = append(v.Checks, waveform.NewCheck(waveform.FidelityCheck, "fidelity", out.Fidelity, w.MinFidelity, ""))
 	if !math.IsNaN(alpha) {
-		v.Checks = append(v.Checks, waveform.NewCheck("adiabaticity", alpha, w.Adiabaticity, "", waveform.BoundMax))
+		v.Checks = append(v.Checks, waveform.NewCheck(waveform.AdiabaticityCheck, "adiabaticity", alpha, w.Adiabaticity, ""))
 	}
 	v.Checks = append(v.Checks, w.HardwareChecks()...)
 	return v, nil

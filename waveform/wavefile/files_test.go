@@ -453,25 +453,38 @@ func TestReadWaveformErrors(t *testing.T) {
   }`, `"pass": false
   }`, 1), "/verification/pass", "the checks say true"},
 	}
-	for _, c := range cases {
-		_, err := ReadWaveform(strings.NewReader(c.doc), "bad.json")
-		var fe *FileError
-		if !errors.As(err, &fe) {
-			t.Errorf("%s: error %v is not a *FileError", c.name, err)
-			continue
-		}
-		if fe.File != "bad.json" || !strings.HasPrefix(fe.Pointer, c.ptr) || !strings.Contains(fe.Msg, c.msg) {
-			t.Errorf("%s: got %q; want pointer %q and %q", c.name, err, c.ptr, c.msg)
-		}
-		t.Logf("%s: %v", c.name, err)
-	}
 	// Non-unitary target with a valid shape.
 	nu := strings.Replace(good, `[0.7071067811865476,0.7071067811865476]`, `[0.9,0.7071067811865476]`, 1)
 	if nu == good {
 		t.Fatal("target not found in the file")
 	}
-	if _, err := ReadWaveform(strings.NewReader(nu), "bad.json"); err == nil || !strings.Contains(err.Error(), "/target: target is not unitary") {
-		t.Errorf("non-unitary target: %v", err)
+	cases = append(cases, struct{ name, doc, ptr, msg string }{"non-unitary target", nu, "/target", "target is not unitary"})
+	kinds := map[string]error{
+		"empty": ErrSyntax, "blank": ErrSyntax, "not JSON": ErrSyntax, "trailing data": ErrSyntax, "NaN": ErrSyntax,
+		"other format": ErrFormat, "loop file": ErrFormat, "version 2": ErrFormat,
+		"huge number": ErrOutOfBounds, "non-unitary target": ErrNotUnitary,
+		"samples mismatch": ErrInconsistent, "unknown level": ErrInconsistent, "self coupling": ErrInconsistent,
+		"edited code": ErrInconsistent, "filter without rise time": ErrInconsistent,
+		"rise time without filter": ErrInconsistent, "pass flag": ErrInconsistent,
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			_, err := ReadWaveform(strings.NewReader(c.doc), "bad.json")
+			var fe *FileError
+			if !errors.As(err, &fe) {
+				t.Fatalf("error %v is not a *FileError", err)
+			}
+			if fe.File != "bad.json" || !strings.HasPrefix(fe.Pointer, c.ptr) || !strings.Contains(fe.Msg, c.msg) {
+				t.Errorf("got %q; want pointer %q and %q", err, c.ptr, c.msg)
+			}
+			want, ok := kinds[c.name]
+			if !ok {
+				want = ErrSchema
+			}
+			if !errors.Is(err, want) {
+				t.Errorf("got kind %v; want errors.Is(err, %v)", fe.Err, want)
+			}
+		})
 	}
 }
 
@@ -504,14 +517,25 @@ func TestReadLoopErrors(t *testing.T) {
 		{"cyclic points", strings.Replace(good, `"kind": "adiabatic"`, `"kind": "cyclic"`, 1), "/segments/0/points", "exactly one point"},
 		{"kind", strings.Replace(good, `"kind": "adiabatic"`, `"kind": "fast"`, 1), "/segments/0/kind", "does not match the schema"},
 	}
+	kinds := map[string]error{
+		"empty": ErrSyntax, "waveform file": ErrFormat, "version": ErrFormat,
+		"s out of range": ErrSchema, "kind": ErrSchema,
+	}
 	for _, c := range cases {
-		_, err := ReadLoop(strings.NewReader(c.doc), "bad-loop.json")
-		var fe *FileError
-		if !errors.As(err, &fe) || !strings.HasPrefix(fe.Pointer, c.ptr) || !strings.Contains(fe.Msg, c.msg) {
-			t.Errorf("%s: got %v; want pointer %q and %q", c.name, err, c.ptr, c.msg)
-			continue
-		}
-		t.Logf("%s: %v", c.name, err)
+		t.Run(c.name, func(t *testing.T) {
+			_, err := ReadLoop(strings.NewReader(c.doc), "bad-loop.json")
+			var fe *FileError
+			if !errors.As(err, &fe) || !strings.HasPrefix(fe.Pointer, c.ptr) || !strings.Contains(fe.Msg, c.msg) {
+				t.Fatalf("got %v; want pointer %q and %q", err, c.ptr, c.msg)
+			}
+			want, ok := kinds[c.name]
+			if !ok {
+				want = ErrInconsistent
+			}
+			if !errors.Is(err, want) {
+				t.Errorf("got kind %v; want errors.Is(err, %v)", fe.Err, want)
+			}
+		})
 	}
 }
 

@@ -29,7 +29,33 @@ type FileError struct {
 	Pointer string
 	// Msg says what is wrong and what was expected.
 	Msg string
+	// Err is the kind of problem, one of the sentinel errors ErrSyntax,
+	// ErrFormat, ErrSchema, ErrNotUnitary, ErrOutOfBounds or
+	// ErrInconsistent; errors.Is finds it through the FileError.
+	Err error
 }
+
+// Sentinel errors for FileError.Err.
+var (
+	// ErrSyntax: the file cannot be read, is empty or is not JSON.
+	ErrSyntax = errors.New("not a readable JSON file")
+	// ErrFormat: another file format, or a format version this build
+	// does not read.
+	ErrFormat = errors.New("wrong format or version")
+	// ErrSchema: the JSON does not follow the format's JSON Schema.
+	ErrSchema = errors.New("schema violation")
+	// ErrNotUnitary: a stored target gate is not unitary.
+	ErrNotUnitary = errors.New("not unitary")
+	// ErrOutOfBounds: a size or value outside its documented range.
+	ErrOutOfBounds = errors.New("out of bounds")
+	// ErrInconsistent: values that contradict each other (a DAC code that
+	// does not match its sample, counts that disagree, a check whose
+	// verdict does not follow from its numbers, an unknown name).
+	ErrInconsistent = errors.New("inconsistent values")
+)
+
+// Unwrap returns the sentinel error of the problem's kind.
+func (e *FileError) Unwrap() error { return e.Err }
 
 // Error formats the problem as "file: pointer: message".
 func (e *FileError) Error() string {
@@ -39,8 +65,14 @@ func (e *FileError) Error() string {
 	return e.File + ": " + e.Pointer + ": " + e.Msg
 }
 
+// ferr returns an ErrInconsistent FileError.
 func ferr(file, ptr, format string, a ...any) error {
-	return &FileError{File: file, Pointer: ptr, Msg: fmt.Sprintf(format, a...)}
+	return ferrKind(file, ptr, ErrInconsistent, format, a...)
+}
+
+// ferrKind returns a FileError of kind err (a sentinel).
+func ferrKind(file, ptr string, err error, format string, a ...any) error {
+	return &FileError{File: file, Pointer: ptr, Msg: fmt.Sprintf(format, a...), Err: err}
 }
 
 var (
@@ -70,13 +102,13 @@ func schemaFor(format string) (*gojsonschema.Schema, error) {
 func readDoc(r io.Reader, name, format string, dst any) error {
 	data, err := io.ReadAll(io.LimitReader(r, MaxFileBytes+1))
 	if err != nil {
-		return ferr(name, "", "cannot read: %v", err)
+		return ferrKind(name, "", ErrSyntax, "cannot read: %v", err)
 	}
 	if len(data) > MaxFileBytes {
-		return ferr(name, "", "file is larger than %d bytes, the limit for %s files", MaxFileBytes, format)
+		return ferrKind(name, "", ErrOutOfBounds, "file is larger than %d bytes, the limit for %s files", MaxFileBytes, format)
 	}
 	if len(bytes.TrimSpace(data)) == 0 {
-		return ferr(name, "", "empty file; expected a %s file (JSON)", format)
+		return ferrKind(name, "", ErrSyntax, "empty file; expected a %s file (JSON)", format)
 	}
 	if !json.Valid(data) {
 		var v any
@@ -84,9 +116,9 @@ func readDoc(r io.Reader, name, format string, dst any) error {
 		var se *json.SyntaxError
 		if errors.As(err, &se) {
 			line, col := lineCol(data, se.Offset)
-			return ferr(name, "", "not valid JSON at line %d, column %d: %v", line, col, se)
+			return ferrKind(name, "", ErrSyntax, "not valid JSON at line %d, column %d: %v", line, col, se)
 		}
-		return ferr(name, "", "not valid JSON: %v", err)
+		return ferrKind(name, "", ErrSyntax, "not valid JSON: %v", err)
 	}
 	var head struct {
 		Format  *string      `json:"format"`
@@ -94,10 +126,10 @@ func readDoc(r io.Reader, name, format string, dst any) error {
 	}
 	if json.Unmarshal(data, &head) == nil {
 		if head.Format != nil && *head.Format != format {
-			return ferr(name, "/format", "format is %q; expected %q", *head.Format, format)
+			return ferrKind(name, "/format", ErrFormat, "format is %q; expected %q", *head.Format, format)
 		}
 		if head.Version != nil && head.Version.String() != fmt.Sprint(FormatVersion) {
-			return ferr(name, "/version", "format version %s is not supported; this build reads version %d", head.Version.String(), FormatVersion)
+			return ferrKind(name, "/version", ErrFormat, "format version %s is not supported; this build reads version %d", head.Version.String(), FormatVersion)
 		}
 	}
 	sch, err := schemaFor(format)
@@ -116,7 +148,7 @@ func readDoc(r io.Reader, name, format string, dst any) error {
 	if err := dec.Decode(dst); err != nil {
 		var te *json.UnmarshalTypeError
 		if errors.As(err, &te) {
-			return ferr(name, "/"+strings.ReplaceAll(te.Field, ".", "/"), "value %s does not fit (%v)", te.Value, err)
+			return ferrKind(name, "/"+strings.ReplaceAll(te.Field, ".", "/"), ErrOutOfBounds, "value %s does not fit (%v)", te.Value, err)
 		}
 		return ferr(name, "", "cannot decode: %v", err)
 	}
@@ -145,7 +177,7 @@ func schemaError(name string, errs []gojsonschema.ResultError) error {
 	if len(items) > 1 {
 		msg += fmt.Sprintf(" (and %d more problems)", len(items)-1)
 	}
-	return &FileError{File: name, Pointer: items[0].ptr, Msg: msg}
+	return &FileError{File: name, Pointer: items[0].ptr, Msg: msg, Err: ErrSchema}
 }
 
 // pointer converts a gojsonschema context "(root).a.0.b" to "/a/0/b".
@@ -272,7 +304,7 @@ func parseTarget(name, ptr string, m *matDoc, d int) (*holonomy.Mat, error) {
 		}
 	}
 	if e := holonomy.UnitarityError(t); !(e <= 1e-6) {
-		return nil, ferr(name, ptr, "target is not unitary: ‖T†T − I‖ = %.3g exceeds the tolerance 1e-6", e)
+		return nil, ferrKind(name, ptr, ErrNotUnitary, "target is not unitary: ‖T†T − I‖ = %.3g exceeds the tolerance 1e-6", e)
 	}
 	return t, nil
 }
@@ -404,7 +436,7 @@ func (d *verificationDoc) parse(name string, nq, nch int) (*sim.Verification, er
 		return nil, err
 	}
 	if !(m.PhaseStep >= 0 && m.PhaseStep <= math.Pi) {
-		return nil, ferr(name, p+"/model/phase_step_rad", "phase step %g rad; need 0 (exact phases) to π", m.PhaseStep)
+		return nil, ferrKind(name, p+"/model/phase_step_rad", ErrOutOfBounds, "phase step %g rad; need 0 (exact phases) to π", m.PhaseStep)
 	}
 	v := &sim.Verification{
 		Model: sim.ErrorModel{
@@ -422,8 +454,12 @@ func (d *verificationDoc) parse(name string, nq, nch int) (*sim.Verification, er
 		v.Adiabaticity = *d.Adiabaticity
 	}
 	for i, c := range d.Checks {
-		lower := c.Bound == "min"
-		want := waveform.NewCheck(c.Name, c.Value, c.Limit, c.Unit, lower)
+		kind, channel := waveform.CheckKindOf(c.Name)
+		if kind == 0 || kind.Lower() != (c.Bound == "min") {
+			return nil, ferr(name, fmt.Sprintf("%s/checks/%d", p, i), "check %q with bound %q is not a check this format defines", c.Name, c.Bound)
+		}
+		want := waveform.NewCheck(kind, c.Name, c.Value, c.Limit, c.Unit)
+		want.Channel = channel
 		if want.Margin != c.Margin || want.Pass != c.Pass {
 			return nil, ferr(name, fmt.Sprintf("%s/checks/%d", p, i), "check %q: margin %g and pass %v do not follow from value %g and limit %g", c.Name, c.Margin, c.Pass, c.Value, c.Limit)
 		}

@@ -106,10 +106,11 @@ func Must[T any](v T, err error) func(testing.TB) T {
 	}
 }
 
-// FindCheck returns the check called name.
-func FindCheck(checks []waveform.Check, name string) (waveform.Check, bool) {
+// FindCheck returns the check of kind k (on channel ch for per-channel
+// limits, "" otherwise).
+func FindCheck(checks []waveform.Check, k waveform.CheckKind, ch string) (waveform.Check, bool) {
 	for _, c := range checks {
-		if c.Name == name {
+		if c.Kind == k && c.Channel == ch {
 			return c, true
 		}
 	}
