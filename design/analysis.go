@@ -16,7 +16,7 @@ type analysis struct {
 	model      sim.ErrorModel
 	ideal      *sim.Verification // ideal model of the quantised waveform
 	withErrors *sim.Verification // the spec's (or the flags') error model
-	traces     *sim.Outcome      // ideal model, with population traces
+	traces     *sim.Figures      // ideal model, with population traces
 	budget     []robust.BudgetRow
 	compare    *dynamical.Comparison // nil when sweeps are off
 	extra      *robust.Sweep         // one-photon sweep, geometric only

@@ -129,7 +129,7 @@ func CheckLoopFile(ctx context.Context, path string, opt CheckOptions) (*LoopChe
 		segc := SegmentCheck{Kind: s.Kind.String()}
 		loop := lf.Shape(i)
 		switch s.Kind {
-		case waveform.Cyclic:
+		case waveform.CyclicSegment:
 			segc.Area = s.Area
 			cyclicPropagator(lf.Scheme, loop, s.Area, seg)
 		default:

@@ -97,8 +97,8 @@ func Design(ctx context.Context, spc *spec.Spec, opt Options) (*Outcome, error) 
 		return nil, err
 	}
 	logf(opt.Log, "sampled %d samples (%.4g s) at %s", w.Len(), w.Duration(), spec.FormatQuantity(w.Hardware.SampleRate, spec.SampleRate))
-	for _, sp := range w.Spans {
-		if sp.Kind == waveform.Adiabatic && (sol.summary.MinGap == 0 || sp.MinGap < sol.summary.MinGap) {
+	for _, sp := range w.Segments {
+		if sp.Kind == waveform.AdiabaticSegment && (sol.summary.MinGap == 0 || sp.MinGap < sol.summary.MinGap) {
 			sol.summary.MinGap = sp.MinGap
 		}
 	}
@@ -193,7 +193,7 @@ func timeLoop(spc *spec.Spec, plan *waveform.Plan, log io.Writer) (*waveform.Wav
 	hw := hardwareOf(spc)
 	adiabatic := false
 	for _, s := range plan.Segments {
-		adiabatic = adiabatic || s.Kind == waveform.Adiabatic
+		adiabatic = adiabatic || s.Kind == waveform.AdiabaticSegment
 	}
 	goal := waveform.DefaultMinFidelity
 	if plan.MinFidelity != 0 {
@@ -431,7 +431,7 @@ func solve(ctx context.Context, spc *spec.Spec, seed uint64) (*solution, error) 
 		for _, g := range res.Segments {
 			g := g
 			plan.Segments = append(plan.Segments, waveform.Segment{
-				Kind:  waveform.Cyclic,
+				Kind:  waveform.CyclicSegment,
 				Area:  g.Area,
 				Shape: func(_ float64, p holonomy.Point) { lc.Point(g, p) },
 			})
@@ -474,7 +474,7 @@ func solve(ctx context.Context, spc *spec.Spec, seed uint64) (*solution, error) 
 			Seed:             seed,
 			TargetInfidelity: spc.Search.TargetInfidelity,
 			MaxEvaluations:   totalEvaluations(spc),
-			Points:           min(shape.Points(), spc.Search.LoopPoints),
+			Points:           min(shape.NumPoints(), spc.Search.LoopPoints),
 			Ensemble:         ens,
 		}
 		res, err := s.Run(ctx)
@@ -484,7 +484,7 @@ func solve(ctx context.Context, spc *spec.Spec, seed uint64) (*solution, error) 
 		plan := &waveform.Plan{
 			Scheme:   spc.Scheme,
 			Target:   target,
-			Segments: []waveform.Segment{{Kind: waveform.Adiabatic, Shape: res.Loop}},
+			Segments: []waveform.Segment{{Kind: waveform.AdiabaticSegment, Shape: res.Loop}},
 		}
 		sum := SearchSummary{
 			Family:      family,
@@ -583,7 +583,7 @@ func amplitudePenalty(sc *holonomy.Scheme, shape optimize.Shape, maxRabi []float
 func simulateEnsemble(spc *spec.Spec, w *waveform.Waveform, r *RobustSummary) error {
 	rb := spc.Search.Robust
 	sm := sim.NewSimulator(w)
-	out := new(sim.Outcome)
+	out := new(sim.Figures)
 	r.Built, r.BuiltMean, r.BuiltWorst = nil, 0, 0
 	for _, e := range []float64{-rb.Amplitude, 0, rb.Amplitude} {
 		for _, d := range []float64{-rb.Detuning, 0, rb.Detuning} {
@@ -641,7 +641,7 @@ func searchError(spc *spec.Spec, err error) error {
 		return err
 	case errors.As(err, &ue):
 		return &InfeasibleError{Err: fmt.Errorf("spec %s: target %s: %w", spc.File, spc.Target.Label, err)}
-	case errors.Is(err, optimize.ErrNotConverged):
+	case errors.Is(err, optimize.ErrTargetNotReached):
 		return &InfeasibleError{Err: fmt.Errorf("spec %s: target %s: the search did not reach search.target_infidelity %g "+
 			"(raise search.restarts or search.evaluations, try another search.seed or loop family, or relax the target): %w",
 			spc.File, spc.Target.Label, spc.Search.TargetInfidelity, err)}
@@ -722,7 +722,7 @@ func errorModelOf(spc *spec.Spec) sim.ErrorModel {
 		OnePhotonDetuning: e.OnePhoton,
 		TwoPhotonDetuning: e.TwoPhoton,
 		Dephasing:         e.Dephasing,
-		Unquantized:       !e.Quantise,
+		SkipDAC:           !e.Quantise,
 	}
 	switch e.Filter {
 	case spec.GaussianFilter:
@@ -800,8 +800,8 @@ type sweepPlan struct {
 // outward search.
 func sweepsOf(spc *spec.Spec, duration float64) sweepPlan {
 	s := spc.Sweeps
-	amp := robust.Range{Axis: robust.AmplitudeAxis, Min: -s.Amplitude.Span, Max: s.Amplitude.Span, Points: s.Amplitude.Points}
-	det := robust.Range{Axis: robust.TwoPhotonAxis, Min: -s.Detuning.Span, Max: s.Detuning.Span, Points: s.Detuning.Points}
+	amp := robust.Range{Axis: robust.AmplitudeAxis, Min: -s.Amplitude.HalfWidth, Max: s.Amplitude.HalfWidth, Points: s.Amplitude.Points}
+	det := robust.Range{Axis: robust.TwoPhotonAxis, Min: -s.Detuning.HalfWidth, Max: s.Detuning.HalfWidth, Points: s.Detuning.Points}
 	p := sweepPlan{
 		amplitude: amp,
 		detuning:  det,

@@ -156,11 +156,11 @@ func loopDrawing(plan *waveform.Plan, preset string) *report.Loop {
 	s := float64(sc.Dim()-1) / 2
 	for _, seg := range plan.Segments {
 		n := reportLoopPoints
-		if seg.Kind == waveform.Cyclic {
+		if seg.Kind == waveform.CyclicSegment {
 			n = 1
 		}
 		for j := 0; j <= n; j++ {
-			if seg.Kind == waveform.Cyclic && j == n {
+			if seg.Kind == waveform.CyclicSegment && j == n {
 				break
 			}
 			for k := range p.Detuning {
@@ -197,7 +197,7 @@ func waveformPanels(w *waveform.Waveform) []report.Waveform {
 	return out
 }
 
-func populationPanels(sc *holonomy.Scheme, tr *sim.Outcome) []report.Populations {
+func populationPanels(sc *holonomy.Scheme, tr *sim.Figures) []report.Populations {
 	if tr == nil || len(tr.Times) == 0 {
 		return nil
 	}

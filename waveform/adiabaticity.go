@@ -31,8 +31,8 @@ func (w *Waveform) MeasureAdiabaticity() (float64, error) {
 	}
 	alpha := math.NaN()
 	dt := w.Dt()
-	for si, span := range w.Spans {
-		if span.Kind != Adiabatic {
+	for si, span := range w.Segments {
+		if span.Kind != AdiabaticSegment {
 			continue
 		}
 		if math.IsNaN(alpha) {

@@ -31,8 +31,8 @@ type Waveform struct {
 	Adiabaticity float64
 	// MinFidelity is the fidelity goal of the verification.
 	MinFidelity float64
-	// Spans describe the segments in time order.
-	Spans []Span
+	// Segments describe the timing of the segments in time order.
+	Segments []SegmentTiming
 	// I and Q hold, per channel, the unquantised drive Ω cos φ/2π and
 	// Ω sin φ/2π of every sample (Hz).
 	I, Q [][]float64
@@ -45,10 +45,11 @@ type Waveform struct {
 	LevelHz []float64 // static level detunings in Hz (canonical)
 }
 
-// Span describes one segment of a Waveform.
-type Span struct {
+// SegmentTiming describes where one segment of a Waveform lies in the
+// samples and how it was timed.
+type SegmentTiming struct {
 	// Kind is the segment's kind.
-	Kind Kind
+	Kind SegmentKind
 	// First is the index of the first sample and Len the number of samples.
 	First, Len int
 	// Ramp is the number of samples of each amplitude ramp of an
@@ -226,7 +227,7 @@ func Build(p *Plan, hw Hardware) (*Waveform, error) {
 			t   *timing
 			err error
 		)
-		if seg.Kind == Adiabatic {
+		if seg.Kind == AdiabaticSegment {
 			t, err = b.timeAdiabatic(seg)
 		} else {
 			t, err = b.timeCyclic(seg)
@@ -254,14 +255,14 @@ func Build(p *Plan, hw Hardware) (*Waveform, error) {
 	for _, t := range tms {
 		t.nRamp = samplesFor(t.tRamp, rate)
 		t.nMain = samplesFor(t.tMain, rate)
-		if t.seg.Kind == Adiabatic {
+		if t.seg.Kind == AdiabaticSegment {
 			t.nRamp = max(t.nRamp, minRampSamples)
 			t.nMain = max(t.nMain, 1)
 		} else {
 			t.nRamp = 0
 			t.nMain = max(t.nMain, minCyclicSamples)
 		}
-		if t.seg.Kind == Adiabatic && t.clusters == 2 {
+		if t.seg.Kind == AdiabaticSegment && t.clusters == 2 {
 			if err := b.matchPhase(t); err != nil {
 				return nil, err
 			}
@@ -293,8 +294,8 @@ func Build(p *Plan, hw Hardware) (*Waveform, error) {
 	w.Detuning = make([][]float64, nlev)
 	at := 0
 	for _, t := range tms {
-		sp := Span{Kind: t.seg.Kind, First: at}
-		if t.seg.Kind == Adiabatic {
+		sp := SegmentTiming{Kind: t.seg.Kind, First: at}
+		if t.seg.Kind == AdiabaticSegment {
 			b.sampleAdiabatic(w, t, at)
 			sp.Len = 2*t.nRamp + t.nMain
 			sp.Ramp = t.nRamp
@@ -306,7 +307,7 @@ func Build(p *Plan, hw Hardware) (*Waveform, error) {
 			sp.Area = t.seg.Area
 			sp.Amplitude = ap / (2 * math.Pi)
 		}
-		w.Spans = append(w.Spans, sp)
+		w.Segments = append(w.Segments, sp)
 		at += sp.Len
 	}
 	if err := w.quantize(); err != nil {

@@ -20,7 +20,7 @@ func ExampleBuild() {
 		Scheme: holonomy.Lambda(),
 		Target: holonomy.NewMatFrom(2, 2, []complex128{r, r, r, -r}),
 		Segments: []waveform.Segment{{
-			Kind: waveform.Cyclic,
+			Kind: waveform.CyclicSegment,
 			Area: 2 * math.Pi,
 			Shape: func(s float64, p holonomy.Point) {
 				holonomy.LambdaPoint(p, 1, math.Pi/4, 0)
@@ -35,7 +35,7 @@ func ExampleBuild() {
 	if err != nil {
 		log.Fatal(err)
 	}
-	fmt.Printf("%d samples (%.0f ns), envelope peak %.2f MHz\n", w.Len(), w.Duration()*1e9, w.Spans[0].Amplitude/1e6)
+	fmt.Printf("%d samples (%.0f ns), envelope peak %.2f MHz\n", w.Len(), w.Duration()*1e9, w.Segments[0].Amplitude/1e6)
 	fmt.Printf("fidelity %.6f, all checks pass: %v\n", v.Fidelity, v.Pass())
 	// Output:
 	// 192 samples (192 ns), envelope peak 10.81 MHz

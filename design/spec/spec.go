@@ -248,11 +248,11 @@ type ErrorModel struct {
 	PhaseStep float64
 }
 
-// Sweep is a 1-D robustness sweep from −Span to +Span.
+// Sweep is a 1-D robustness sweep from −HalfWidth to +HalfWidth.
 type Sweep struct {
-	// Span is the half-width: a relative error for amplitude sweeps, Δ/2π
+	// HalfWidth is the half-width: a relative error for amplitude sweeps, Δ/2π
 	// in Hz for detuning sweeps.
-	Span float64
+	HalfWidth float64
 	// Points is the number of sweep points.
 	Points int
 }
@@ -261,7 +261,7 @@ type Sweep struct {
 type Sweeps struct {
 	// Amplitude sweeps the common amplitude error.
 	Amplitude Sweep
-	// Detuning sweeps a detuning error (Span as Δ/2π in Hz).
+	// Detuning sweeps a detuning error (HalfWidth as Δ/2π in Hz).
 	Detuning Sweep
 	// DetuningKind says which detuning the sweep and the map vary.
 	DetuningKind DetuningKind

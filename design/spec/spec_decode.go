@@ -724,7 +724,7 @@ func (d *decoder) errorModel(s *Spec, m map[string]any, path string, chans []str
 
 func (d *decoder) sweeps(s *Spec, m map[string]any, path string) {
 	w := &s.Sweeps
-	w.Amplitude = Sweep{Span: defaultAmplitudeSpan, Points: defaultSweepPoints}
+	w.Amplitude = Sweep{HalfWidth: defaultAmplitudeSpan, Points: defaultSweepPoints}
 	w.Detuning = Sweep{Points: defaultSweepPoints}
 	w.DetuningKind = defaultKind(s)
 	w.MapAmplitude, w.MapDetuning = defaultMapPoints, defaultMapPoints
@@ -737,14 +737,14 @@ func (d *decoder) sweeps(s *Spec, m map[string]any, path string) {
 	if math.IsInf(minRabi, 1) {
 		minRabi = 1e6 // hardware.max_rabi is bad and reported; any positive span will do
 	}
-	w.Detuning.Span = defaultDetuningSpanFraction * minRabi
+	w.Detuning.HalfWidth = defaultDetuningSpanFraction * minRabi
 	if m == nil {
 		return
 	}
 	if a := mapAt(m, "amplitude"); a != nil {
 		p := path + ".amplitude"
 		if x, ok := d.quantity(a, "span", p, Number); ok {
-			w.Amplitude.Span = x
+			w.Amplitude.HalfWidth = x
 		}
 		if n, ok := d.integer(a, "points", p); ok {
 			w.Amplitude.Points = clampInt(n)
@@ -753,7 +753,7 @@ func (d *decoder) sweeps(s *Spec, m map[string]any, path string) {
 	if a := mapAt(m, "detuning"); a != nil {
 		p := path + ".detuning"
 		if x, ok := d.quantity(a, "span", p, Frequency); ok {
-			w.Detuning.Span = x
+			w.Detuning.HalfWidth = x
 		}
 		if n, ok := d.integer(a, "points", p); ok {
 			w.Detuning.Points = clampInt(n)

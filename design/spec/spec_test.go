@@ -162,7 +162,7 @@ func TestDefaults(t *testing.T) {
 		t.Errorf("error-model defaults %+v", s.Errors)
 	}
 	// Detuning sweep: a tenth of the smallest max_rabi.
-	if s.Sweeps.Detuning.Span != 1e6 || s.Sweeps.Amplitude.Span != defaultAmplitudeSpan {
+	if s.Sweeps.Detuning.HalfWidth != 1e6 || s.Sweeps.Amplitude.HalfWidth != defaultAmplitudeSpan {
 		t.Errorf("sweep defaults %+v", s.Sweeps)
 	}
 	for _, l := range s.Scheme.Levels {

@@ -481,11 +481,11 @@ func (s *Spec) checkErrors(c *checker, nch int) {
 
 func (s *Spec) checkSweeps(c *checker) {
 	w := &s.Sweeps
-	if a := w.Amplitude.Span; !holonomy.Finite(a) || a <= 0 || a >= 1 {
+	if a := w.Amplitude.HalfWidth; !holonomy.Finite(a) || a <= 0 || a >= 1 {
 		c.bad("sweeps.amplitude.span", "must be above 0 and below 1; found %v", a)
 	}
 	c.intRange("sweeps.amplitude.points", w.Amplitude.Points, 2, MaxSweepPoints, "the number of sweep points")
-	c.positive("sweeps.detuning.span", w.Detuning.Span, Frequency)
+	c.positive("sweeps.detuning.span", w.Detuning.HalfWidth, Frequency)
 	c.intRange("sweeps.detuning.points", w.Detuning.Points, 2, MaxSweepPoints, "the number of sweep points")
 	s.checkKind(c, "sweeps.detuning.kind", w.DetuningKind)
 	c.intRange("sweeps.map.amplitude_points", w.MapAmplitude, 2, MaxMapPoints, "the number of map points")

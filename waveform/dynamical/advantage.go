@@ -191,7 +191,7 @@ func NewDynamical(geo *waveform.Waveform) (*Dynamical, error) {
 		Scheme: q,
 		Target: target,
 		Segments: []waveform.Segment{{
-			Kind:  waveform.Cyclic,
+			Kind:  waveform.CyclicSegment,
 			Shape: func(_ float64, p holonomy.Point) { p.Drive[0] = drive },
 			Area:  pulse.Area,
 		}},

@@ -87,11 +87,11 @@ func TestAdvantageDynamicalGate(t *testing.T) {
 				t.Errorf("T: frame change alone should be exact: %v, %v", out, err)
 			}
 			t.Logf("T: %v", d)
-		} else if peak := d.Waveform.Spans[0].Amplitude; peak > geo.Hardware.MaxRabi[0]*(1+1e-12) {
+		} else if peak := d.Waveform.Segments[0].Amplitude; peak > geo.Hardware.MaxRabi[0]*(1+1e-12) {
 			t.Errorf("%s: peak Rabi %v Hz above the limit", name, peak)
 		}
 		for _, eps := range []float64{0, 0.03, -0.05} {
-			out, err := sim.Simulate(dw, sim.ErrorModel{Unquantized: true, AmplitudeError: eps})
+			out, err := sim.Simulate(dw, sim.ErrorModel{SkipDAC: true, AmplitudeError: eps})
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -133,10 +133,10 @@ func TestAdvantageLambdaAreaErrorQuadratic(t *testing.T) {
 	w := wavetest.RobustLambda(t, math.Pi/3, 0.4)
 	eps := []float64{-0.016, -0.008, -0.004, -0.002, -0.001, 0.001, 0.002, 0.004, 0.008, 0.016}
 	sm := sim.NewSimulator(w)
-	out := new(sim.Outcome)
+	out := new(sim.Figures)
 	var ax, ay []float64
 	for _, e := range eps {
-		if err := sm.Run(sim.ErrorModel{Unquantized: true, AmplitudeError: e}, out); err != nil {
+		if err := sm.Run(sim.ErrorModel{SkipDAC: true, AmplitudeError: e}, out); err != nil {
 			t.Fatal(err)
 		}
 		inf := 1 - out.Fidelity
@@ -176,13 +176,13 @@ func TestAdvantageTripodCommonScale(t *testing.T) {
 		t.Fatal(err)
 	}
 	sm := sim.NewSimulator(w)
-	out := new(sim.Outcome)
-	if err := sm.Run(sim.ErrorModel{Unquantized: true}, out); err != nil {
+	out := new(sim.Figures)
+	if err := sm.Run(sim.ErrorModel{SkipDAC: true}, out); err != nil {
 		t.Fatal(err)
 	}
 	f0 := out.Fidelity
 	for _, e := range []float64{-0.05, 0.05} {
-		if err := sm.Run(sim.ErrorModel{Unquantized: true, AmplitudeError: e}, out); err != nil {
+		if err := sm.Run(sim.ErrorModel{SkipDAC: true, AmplitudeError: e}, out); err != nil {
 			t.Fatal(err)
 		}
 		bound := math.Pow(alpha/(1+e), 2)
@@ -214,7 +214,7 @@ func TestAdvantageDynamicalPrefactor(t *testing.T) {
 		all = append(all, -e, e)
 	}
 	all = append(all, 0)
-	base := sim.ErrorModel{Unquantized: true}
+	base := sim.ErrorModel{SkipDAC: true}
 	var sw [2]*robust.Sweep
 	for g, w := range []*waveform.Waveform{geo, dyn.Waveform} {
 		s := &robust.Sweep{Axis: robust.AmplitudeAxis, X: all}
@@ -264,7 +264,7 @@ func TestAdvantageCompareTripod(t *testing.T) {
 		{Axis: robust.AmplitudeAxis, Min: -0.1, Max: 0.1, Points: 11},
 		{Axis: robust.TwoPhotonAxis, Min: -50e3, Max: 50e3, Points: 11},
 	}
-	base := sim.ErrorModel{Unquantized: true}
+	base := sim.ErrorModel{SkipDAC: true}
 	cmp, err := Compare(context.Background(), geo, ranges, &robust.SweepOptions{Base: base})
 	if err != nil {
 		t.Fatal(err)

@@ -53,11 +53,11 @@ type BudgetRow struct {
 //     two-photon detuning: each is the ideal model
 //     with that one term of m switched on, and the line is the increase
 //     of 1 − F over the ideal line. A term that m does not contain (zero
-//     rate, zero error, Unquantized set) has no line.
+//     rate, zero error, SkipDAC set) has no line.
 //   - total: 1 − F with all of m on; its note also gives the sum of the
 //     separate lines, which differs from the total when terms interact.
 func Budget(ctx context.Context, w *waveform.Waveform, m sim.ErrorModel, opt *SweepOptions) ([]BudgetRow, error) {
-	ideal := sim.ErrorModel{Unquantized: true}
+	ideal := sim.ErrorModel{SkipDAC: true}
 	type term struct {
 		name, note string
 		model      sim.ErrorModel
@@ -77,9 +77,9 @@ func Budget(ctx context.Context, w *waveform.Waveform, m sim.ErrorModel, opt *Sw
 	add(m.Dephasing > 0, "dephasing (γ_φ)",
 		fmt.Sprintf("γ_φ = %.4g /s on the qubit levels, Lindblad master equation; alone on the ideal model", m.Dephasing),
 		func(e *sim.ErrorModel) { e.Dephasing = m.Dephasing })
-	add(!m.Unquantized, "quantisation (DAC)",
+	add(!m.SkipDAC, "quantisation (DAC)",
 		fmt.Sprintf("drive from the %d-bit DAC codes instead of the unquantised samples; alone on the ideal model", w.Hardware.DACBits),
-		func(e *sim.ErrorModel) { e.Unquantized = false })
+		func(e *sim.ErrorModel) { e.SkipDAC = false })
 	add(m.PhaseStep > 0, "phase resolution",
 		fmt.Sprintf("drive phases rounded to multiples of %.4g rad (%.4g°); alone on the ideal model", m.PhaseStep, m.PhaseStep*180/math.Pi),
 		func(e *sim.ErrorModel) { e.PhaseStep = m.PhaseStep })
@@ -97,7 +97,7 @@ func Budget(ctx context.Context, w *waveform.Waveform, m sim.ErrorModel, opt *Sw
 		func(e *sim.ErrorModel) { e.TwoPhotonDetuning = m.TwoPhotonDetuning })
 	terms = append(terms, term{name: "total", model: m})
 
-	outs := make([]sim.Outcome, len(terms))
+	outs := make([]sim.Figures, len(terms))
 	err := RunJobs(ctx, len(terms), opt, "error budget", func(wk *Worker, k int) error {
 		out, err := wk.Run(w, terms[k].model)
 		if err != nil {
@@ -167,8 +167,8 @@ func amplitudeNote(w *waveform.Waveform, m sim.ErrorModel) string {
 }
 
 func hasAdiabatic(w *waveform.Waveform) bool {
-	for _, s := range w.Spans {
-		if s.Kind == waveform.Adiabatic {
+	for _, s := range w.Segments {
+		if s.Kind == waveform.AdiabaticSegment {
 			return true
 		}
 	}

@@ -40,7 +40,7 @@ func TestBudgetLines(t *testing.T) {
 			t.Errorf("line %q: Total = %v", r.Term, r.Total)
 		}
 	}
-	ideal := sim.ErrorModel{Unquantized: true}
+	ideal := sim.ErrorModel{SkipDAC: true}
 	alone := map[string]sim.ErrorModel{}
 	set := func(name string, f func(*sim.ErrorModel)) {
 		mm := ideal
@@ -49,7 +49,7 @@ func TestBudgetLines(t *testing.T) {
 	}
 	set("loss (decay Γ)", func(e *sim.ErrorModel) { e.Decay = m.Decay })
 	set("dephasing (γ_φ)", func(e *sim.ErrorModel) { e.Dephasing = m.Dephasing })
-	set("quantisation (DAC)", func(e *sim.ErrorModel) { e.Unquantized = false })
+	set("quantisation (DAC)", func(e *sim.ErrorModel) { e.SkipDAC = false })
 	set("phase resolution", func(e *sim.ErrorModel) { e.PhaseStep = m.PhaseStep })
 	set("bandwidth (low-pass)", func(e *sim.ErrorModel) { e.RiseTime, e.Filter = m.RiseTime, m.Filter })
 	set("amplitude error", func(e *sim.ErrorModel) { e.AmplitudeError = m.AmplitudeError })
@@ -91,7 +91,7 @@ func TestBudgetLines(t *testing.T) {
 	// A model without errors: ideal, leakage and total only, and an
 	// adiabatic waveform names the first line non-adiabaticity.
 	tw := wavetest.RobustTripod(t, math.Pi/4, 0.05, 20e6)
-	rows, err = Budget(context.Background(), tw, sim.ErrorModel{Unquantized: true}, nil)
+	rows, err = Budget(context.Background(), tw, sim.ErrorModel{SkipDAC: true}, nil)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -191,7 +191,7 @@ type Sweep struct {
 	// X holds the error values, increasing (ε dimensionless, detunings Hz).
 	X []float64
 	// Fidelity and Leakage hold the average gate fidelity and the leakage
-	// (see Outcome) at each X.
+	// (see Figures) at each X.
 	Fidelity, Leakage []float64
 }
 
@@ -368,15 +368,15 @@ func crossing(xa, xb, fa, fb, qt float64) float64 {
 
 // robustWorker is one goroutine's simulation workspace: a Simulator per
 // waveform (created on first use, then reused without allocation) and an
-// Outcome.
+// Figures.
 type Worker struct {
 	sims map[*waveform.Waveform]*sim.Simulator
-	out  sim.Outcome
+	out  sim.Figures
 }
 
 // run simulates w under m with the worker's workspace. The returned
-// Outcome is overwritten by the next run.
-func (wk *Worker) Run(w *waveform.Waveform, m sim.ErrorModel) (*sim.Outcome, error) {
+// Figures is overwritten by the next run.
+func (wk *Worker) Run(w *waveform.Waveform, m sim.ErrorModel) (*sim.Figures, error) {
 	s := wk.sims[w]
 	if s == nil {
 		s = sim.NewSimulator(w)

@@ -33,7 +33,7 @@ func ExampleSweepAxis() {
 		Scheme: holonomy.Lambda(),
 		Target: holonomy.NewMatFrom(2, 2, []complex128{0, 1, 1, 0}),
 		Segments: []waveform.Segment{{
-			Kind:  waveform.Cyclic,
+			Kind:  waveform.CyclicSegment,
 			Shape: func(_ float64, p holonomy.Point) { holonomy.LambdaPoint(p, 1, math.Pi/2, 0) },
 			Area:  2 * math.Pi,
 		}},
@@ -43,7 +43,7 @@ func ExampleSweepAxis() {
 		log.Fatal(err)
 	}
 	ctx := context.Background()
-	opt := &robust.SweepOptions{Base: sim.ErrorModel{Unquantized: true}}
+	opt := &robust.SweepOptions{Base: sim.ErrorModel{SkipDAC: true}}
 	s, err := robust.SweepAxis(ctx, w, robust.Range{Axis: robust.AmplitudeAxis, Min: -0.03, Max: 0.03, Points: 7}, opt)
 	if err != nil {
 		log.Fatal(err)

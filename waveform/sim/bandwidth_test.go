@@ -62,7 +62,7 @@ func TestFirstOrderStepResponse(t *testing.T) {
 	w := stepWaveform(t, k0)
 	rise := 20e-9
 	tau := rise / math.Log(9)
-	m := ErrorModel{Unquantized: true, Filter: FirstOrderFilter, RiseTime: rise, SubSteps: 64}
+	m := ErrorModel{SkipDAC: true, Filter: FirstOrderFilter, RiseTime: rise, SubSteps: 64}
 	s := NewSimulator(w)
 	ts, ys := filteredDrive(t, s, m, 0)
 	for i := range ys {
@@ -160,12 +160,12 @@ func TestFirstOrderKernel(t *testing.T) {
 // F ≥ 0.9999 while a long one degrades the gate.
 func TestFirstOrderLambda(t *testing.T) {
 	lam := wavetest.MustBuild(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6))
-	ideal, err := Simulate(lam, ErrorModel{Unquantized: true})
+	ideal, err := Simulate(lam, ErrorModel{SkipDAC: true})
 	if err != nil {
 		t.Fatal(err)
 	}
 	for _, rise := range []float64{1e-9, 50e-9} {
-		m := ErrorModel{Unquantized: true, Filter: FirstOrderFilter, RiseTime: rise}
+		m := ErrorModel{SkipDAC: true, Filter: FirstOrderFilter, RiseTime: rise}
 		// Area of the filtered drive against the held samples'.
 		s := NewSimulator(lam)
 		_, ys := filteredDrive(t, s, m, 1)
@@ -234,8 +234,8 @@ func twoSegmentPlan(theta, phi, gamma float64) *waveform.Plan {
 		Scheme: holonomy.Lambda(),
 		Target: target,
 		Segments: []waveform.Segment{
-			{Kind: waveform.Cyclic, Area: math.Pi, Shape: func(s float64, p holonomy.Point) { holonomy.LambdaPoint(p, 1, theta, phi) }},
-			{Kind: waveform.Cyclic, Area: math.Pi, Shape: func(s float64, p holonomy.Point) {
+			{Kind: waveform.CyclicSegment, Area: math.Pi, Shape: func(s float64, p holonomy.Point) { holonomy.LambdaPoint(p, 1, theta, phi) }},
+			{Kind: waveform.CyclicSegment, Area: math.Pi, Shape: func(s float64, p holonomy.Point) {
 				holonomy.LambdaPoint(p, 1, theta, phi)
 				for c := range p.Drive {
 					p.Drive[c] *= cmplx.Rect(1, gamma)
@@ -267,14 +267,14 @@ func TestPhaseStepLambda(t *testing.T) {
 		phi := 2*math.Pi*fr - math.Pi
 		w := wavetest.MustBuild(t, wavetest.LambdaPlan(theta, phi, wavetest.NDotSigma(theta, phi)), wavetest.Hardware(2, 10e6))
 		s := NewSimulator(w)
-		var base Outcome
-		if err := s.Run(ErrorModel{Unquantized: true}, &base); err != nil {
+		var base Figures
+		if err := s.Run(ErrorModel{SkipDAC: true}, &base); err != nil {
 			t.Fatal(err)
 		}
 		for i, b := range bits {
 			step := 2 * math.Pi / float64(int(1)<<b)
-			var out Outcome
-			if err := s.Run(ErrorModel{Unquantized: true, PhaseStep: step}, &out); err != nil {
+			var out Figures
+			if err := s.Run(ErrorModel{SkipDAC: true, PhaseStep: step}, &out); err != nil {
 				t.Fatal(err)
 			}
 			delta := phi - step*math.Round(phi/step)
@@ -361,7 +361,7 @@ func combined(e1, e2 float64) float64 {
 }
 
 // sameOutcome reports whether a and b agree bit for bit.
-func sameOutcome(a, b *Outcome) bool {
+func sameOutcome(a, b *Figures) bool {
 	eq := func(x, y []float64) bool {
 		if len(x) != len(y) {
 			return false

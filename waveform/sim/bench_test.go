@@ -19,7 +19,7 @@ func tripod2000(tb testing.TB) *waveform.Waveform {
 func TestRunAllocatesNothing(t *testing.T) {
 	w := tripod2000(t)
 	s := NewSimulator(w)
-	var out Outcome
+	var out Figures
 	for _, m := range []ErrorModel{{}, {AmplitudeError: 0.01, TwoPhotonDetuning: 1e4}, {Decay: 1e5}, {RiseTime: 3e-9},
 		{RiseTime: 3e-9, Filter: FirstOrderFilter}, {PhaseStep: 2 * math.Pi / 256}, {RiseTime: 3e-9, Filter: FirstOrderFilter, PhaseStep: 2 * math.Pi / 256}} {
 		if err := s.Run(m, &out); err != nil {
@@ -36,7 +36,7 @@ func TestRunAllocatesNothing(t *testing.T) {
 func BenchmarkSimulateTripod2000(b *testing.B) {
 	w := tripod2000(b)
 	s := NewSimulator(w)
-	var out Outcome
+	var out Figures
 	m := ErrorModel{AmplitudeError: 0.01, OnePhotonDetuning: 2e5}
 	s.Run(m, &out)
 	b.ReportAllocs()
@@ -56,7 +56,7 @@ func BenchmarkSimulateTripod2000(b *testing.B) {
 func BenchmarkSimulateTripod2000FirstOrder(b *testing.B) {
 	w := tripod2000(b)
 	s := NewSimulator(w)
-	var out Outcome
+	var out Figures
 	m := ErrorModel{RiseTime: 3e-9, Filter: FirstOrderFilter, PhaseStep: 2 * math.Pi / 256}
 	s.Run(m, &out)
 	b.ReportAllocs()
@@ -71,7 +71,7 @@ func BenchmarkSimulateTripod2000FirstOrder(b *testing.B) {
 func BenchmarkSimulateTripod2000Gaussian(b *testing.B) {
 	w := tripod2000(b)
 	s := NewSimulator(w)
-	var out Outcome
+	var out Figures
 	m := ErrorModel{RiseTime: 3e-9, PhaseStep: 2 * math.Pi / 256}
 	s.Run(m, &out)
 	b.ReportAllocs()
@@ -86,7 +86,7 @@ func BenchmarkSimulateTripod2000Gaussian(b *testing.B) {
 func BenchmarkSimulateTripod2000Decay(b *testing.B) {
 	w := tripod2000(b)
 	s := NewSimulator(w)
-	var out Outcome
+	var out Figures
 	m := ErrorModel{Decay: 1e6}
 	s.Run(m, &out)
 	b.ReportAllocs()
@@ -101,7 +101,7 @@ func BenchmarkSimulateTripod2000Decay(b *testing.B) {
 func BenchmarkSimulateTripod2000Dephasing(b *testing.B) {
 	w := tripod2000(b)
 	s := NewSimulator(w)
-	var out Outcome
+	var out Figures
 	m := ErrorModel{Dephasing: 1e4}
 	s.Run(m, &out)
 	b.ReportAllocs()

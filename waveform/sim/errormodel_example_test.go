@@ -25,7 +25,7 @@ func ExampleErrorModel() {
 	plan := &waveform.Plan{
 		Scheme: holonomy.Lambda(),
 		Target: holonomy.NewMatFrom(2, 2, []complex128{complex(ct, 0), e, cmplx.Conj(e), complex(-ct, 0)}),
-		Segments: []waveform.Segment{{Kind: waveform.Cyclic, Area: 2 * math.Pi,
+		Segments: []waveform.Segment{{Kind: waveform.CyclicSegment, Area: 2 * math.Pi,
 			Shape: func(s float64, p holonomy.Point) { holonomy.LambdaPoint(p, 1, theta, phi) }}},
 	}
 	w, err := waveform.Build(plan, demoHardware(2))
@@ -33,7 +33,7 @@ func ExampleErrorModel() {
 		log.Fatal(err)
 	}
 	s := sim.NewSimulator(w)
-	var out sim.Outcome
+	var out sim.Figures
 	for _, c := range []struct {
 		name string
 		m    sim.ErrorModel

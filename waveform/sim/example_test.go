@@ -43,7 +43,7 @@ func ExampleVerify() {
 	plan := &waveform.Plan{
 		Scheme:   holonomy.Tripod(),
 		Target:   holonomy.NewMatFrom(2, 2, []complex128{c, -s, s, c}),
-		Segments: []waveform.Segment{{Kind: waveform.Adiabatic, Shape: loop}},
+		Segments: []waveform.Segment{{Kind: waveform.AdiabaticSegment, Shape: loop}},
 	}
 	w, err := waveform.Build(plan, demoHardware(3))
 	if err != nil {
@@ -73,7 +73,7 @@ func ExampleSimulator() {
 	plan := &waveform.Plan{
 		Scheme: holonomy.Lambda(),
 		Target: holonomy.NewMatFrom(2, 2, []complex128{r, r, r, -r}),
-		Segments: []waveform.Segment{{Kind: waveform.Cyclic, Area: 2 * math.Pi,
+		Segments: []waveform.Segment{{Kind: waveform.CyclicSegment, Area: 2 * math.Pi,
 			Shape: func(s float64, p holonomy.Point) { holonomy.LambdaPoint(p, 1, math.Pi/4, 0) }}},
 	}
 	w, err := waveform.Build(plan, demoHardware(2))
@@ -81,7 +81,7 @@ func ExampleSimulator() {
 		log.Fatal(err)
 	}
 	s := sim.NewSimulator(w)
-	var out sim.Outcome
+	var out sim.Figures
 	for _, eps := range []float64{-0.1, -0.05, 0, 0.05, 0.1} {
 		if err := s.Run(sim.ErrorModel{AmplitudeError: eps}, &out); err != nil {
 			log.Fatal(err)

@@ -81,7 +81,7 @@ func (lw *lindbladWork) fidelity(comp []int, target *holonomy.Mat) (fid, leak fl
 }
 
 // runLindblad is Run's path for a model with dephasing.
-func (s *Simulator) runLindblad(m *ErrorModel, steps, stride int, dt float64, out *Outcome) error {
+func (s *Simulator) runLindblad(m *ErrorModel, steps, stride int, dt float64, out *Figures) error {
 	if s.lind == nil {
 		s.lind = newLindbladWork(s.n, s.w.Scheme.Computational)
 	}
@@ -102,7 +102,7 @@ func (s *Simulator) runLindblad(m *ErrorModel, steps, stride int, dt float64, ou
 }
 
 // recordRho is record for the density-matrix path.
-func (s *Simulator) recordRho(out *Outcome, stride, q int) {
+func (s *Simulator) recordRho(out *Figures, stride, q int) {
 	lw := s.lind
 	n := s.n
 	for a := range s.w.Scheme.Computational {

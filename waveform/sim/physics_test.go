@@ -26,13 +26,13 @@ func TestCyclicAreaExact(t *testing.T) {
 		if d := math.Abs(area - 2*math.Pi); d > 1e-12 {
 			t.Errorf("rate %g: sampled area %.16g, off 2π by %.3g", rate, area, d)
 		}
-		if len(w.Spans) != 1 || w.Spans[0].Area != 2*math.Pi {
-			t.Errorf("rate %g: spans %+v", rate, w.Spans)
+		if len(w.Segments) != 1 || w.Segments[0].Area != 2*math.Pi {
+			t.Errorf("rate %g: spans %+v", rate, w.Segments)
 		}
 		// The envelope starts and ends near zero (sin² edges).
 		first := math.Hypot(w.I[1][0], w.Q[1][0])
-		if first > 1e-2*w.Spans[0].Amplitude {
-			t.Errorf("rate %g: first sample %g Hz is not near zero (peak %g Hz)", rate, first, w.Spans[0].Amplitude)
+		if first > 1e-2*w.Segments[0].Amplitude {
+			t.Errorf("rate %g: first sample %g Hz is not near zero (peak %g Hz)", rate, first, w.Segments[0].Amplitude)
 		}
 	}
 }
@@ -64,7 +64,7 @@ func TestLambdaHadamard(t *testing.T) {
 	}
 	// Without quantisation the drive direction is exactly constant, all
 	// steps commute and the gate is exact to rounding.
-	vu := wavetest.Must(Verify(w, ErrorModel{Unquantized: true}))(t)
+	vu := wavetest.Must(Verify(w, ErrorModel{SkipDAC: true}))(t)
 	if 1-vu.Fidelity > 1e-12 {
 		t.Errorf("unquantised fidelity 1 − %.3g", 1-vu.Fidelity)
 	}
@@ -103,8 +103,8 @@ func TestTwoSegmentLoop(t *testing.T) {
 			Scheme: holonomy.Lambda(),
 			Target: target,
 			Segments: []waveform.Segment{
-				{Kind: waveform.Cyclic, Area: math.Pi, Shape: func(s float64, p holonomy.Point) { holonomy.LambdaPoint(p, 1, theta, phi) }},
-				{Kind: waveform.Cyclic, Area: math.Pi, Shape: func(s float64, p holonomy.Point) {
+				{Kind: waveform.CyclicSegment, Area: math.Pi, Shape: func(s float64, p holonomy.Point) { holonomy.LambdaPoint(p, 1, theta, phi) }},
+				{Kind: waveform.CyclicSegment, Area: math.Pi, Shape: func(s float64, p holonomy.Point) {
 					holonomy.LambdaPoint(p, 1, theta, phi)
 					for c := range p.Drive {
 						p.Drive[c] *= cmplx.Rect(1, g)
@@ -114,8 +114,8 @@ func TestTwoSegmentLoop(t *testing.T) {
 		}
 		w := wavetest.MustBuild(t, p, wavetest.Hardware(2, 10e6))
 		v := wavetest.Must(Verify(w, ErrorModel{}))(t)
-		if v.Fidelity < 0.9999 || len(w.Spans) != 2 || w.Spans[1].First != w.Spans[0].Len {
-			t.Errorf("γ = %g: F = %.8f, spans %+v", gamma, v.Fidelity, w.Spans)
+		if v.Fidelity < 0.9999 || len(w.Segments) != 2 || w.Segments[1].First != w.Segments[0].Len {
+			t.Errorf("γ = %g: F = %.8f, spans %+v", gamma, v.Fidelity, w.Segments)
 		}
 	}
 }
@@ -172,7 +172,7 @@ func TestAdiabaticityInverseDuration(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	loopLen := func(w *waveform.Waveform) float64 { return float64(w.Spans[0].Len - 2*w.Spans[0].Ramp) }
+	loopLen := func(w *waveform.Waveform) float64 { return float64(w.Segments[0].Len - 2*w.Segments[0].Ramp) }
 	for _, f := range []float64{2, 4} {
 		hw := wavetest.Hardware(3, 10e6)
 		hw.MinDuration = f * base.Duration()
@@ -201,7 +201,7 @@ func TestDecayDarkVersusBright(t *testing.T) {
 	lam := wavetest.MustBuild(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6))
 	sim := NewSimulator(lam)
 	sim.TracePoints = lam.Len()
-	var out Outcome
+	var out Figures
 	if err := sim.Run(ErrorModel{}, &out); err != nil {
 		t.Fatal(err)
 	}
@@ -290,11 +290,11 @@ func TestLindbladMatchesUnitary(t *testing.T) {
 // its time scales.
 func TestBandwidth(t *testing.T) {
 	lam := wavetest.MustBuild(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6))
-	ideal, err := Simulate(lam, ErrorModel{Unquantized: true})
+	ideal, err := Simulate(lam, ErrorModel{SkipDAC: true})
 	if err != nil {
 		t.Fatal(err)
 	}
-	filt, err := Simulate(lam, ErrorModel{Unquantized: true, RiseTime: 5e-9})
+	filt, err := Simulate(lam, ErrorModel{SkipDAC: true, RiseTime: 5e-9})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -404,7 +404,7 @@ func TestSpinHalfBerryPhase(t *testing.T) {
 		if d := holonomy.FrobeniusDist(res.U, target); d > 1e-6 {
 			t.Fatalf("θ₀ = %g: Wilson loop %v differs from the Berry phases by %g", theta0, res.U, d)
 		}
-		p := &waveform.Plan{Scheme: sc, Target: target, Segments: []waveform.Segment{{Kind: waveform.Adiabatic, Shape: coneLoop(theta0)}}, Adiabaticity: 0.03}
+		p := &waveform.Plan{Scheme: sc, Target: target, Segments: []waveform.Segment{{Kind: waveform.AdiabaticSegment, Shape: coneLoop(theta0)}}, Adiabaticity: 0.03}
 		w := wavetest.MustBuild(t, p, wavetest.Hardware(1, 10e6))
 		v := wavetest.Must(Verify(w, ErrorModel{}))(t)
 		t.Logf("θ₀ = %.3g: %d samples, F = %.9f, α = %.4g, detuning tracks on %v", theta0, w.Len(), v.Fidelity, v.Adiabaticity, w.Detuning[0] != nil)

@@ -54,15 +54,15 @@ type ErrorModel struct {
 	// PhaseStep is the drive-phase resolution (rad) of a phase modulator
 	// that can set phases only on a grid: the phase of every held sample
 	// of every channel (from the DAC codes, or from I and Q when
-	// Unquantized) is rounded to the nearest multiple of PhaseStep
+	// SkipDAC) is rounded to the nearest multiple of PhaseStep
 	// (halfway cases away from zero), its modulus kept, before filtering
 	// and propagation. A sample whose phase is already on the grid is used
 	// unchanged. The phase switches exactly at the sample boundaries (no
 	// timing jitter). Zero means exact phases; the largest step is π.
 	PhaseStep float64
-	// Unquantized takes the drive from the unquantised I and Q instead of
+	// SkipDAC takes the drive from the unquantised I and Q instead of
 	// the DAC codes.
-	Unquantized bool
+	SkipDAC bool
 }
 
 // FilterKind is the shape of the low-pass filter that models the analog
@@ -132,8 +132,8 @@ const (
 	firstOrderReach = 12 * math.Ln10
 )
 
-// Outcome is the result of one simulation.
-type Outcome struct {
+// Figures is the result of one simulation.
+type Figures struct {
 	// Fidelity is the average gate fidelity on the computational levels
 	// including leakage (Pedersen, Møller and Mølmer, Phys. Lett. A 367, 47
 	// (2007)); Leakage is 1 − Tr(M†M)/d, which includes decay losses.
@@ -239,10 +239,10 @@ func NewSimulator(w *waveform.Waveform) *Simulator {
 // Simulate propagates w under m and returns the outcome with about 400
 // decimated population samples. It allocates a Simulator; use one directly
 // to run many models.
-func Simulate(w *waveform.Waveform, m ErrorModel) (*Outcome, error) {
+func Simulate(w *waveform.Waveform, m ErrorModel) (*Figures, error) {
 	s := NewSimulator(w)
 	s.TracePoints = 400
-	out := new(Outcome)
+	out := new(Figures)
 	if err := s.Run(m, out); err != nil {
 		return nil, err
 	}
@@ -429,7 +429,7 @@ func roundPhase(z complex128, step float64) complex128 {
 
 // Run propagates the waveform under m and stores the result in out,
 // reusing out's slices when they are large enough.
-func (s *Simulator) Run(m ErrorModel, out *Outcome) error {
+func (s *Simulator) Run(m ErrorModel, out *Figures) error {
 	steps, err := s.prepare(&m)
 	if err != nil {
 		return err
@@ -538,7 +538,7 @@ func (s *Simulator) keep() {
 // record updates the peak auxiliary populations after sample boundary q
 // (counted on the extended grid) and stores a trace point every stride
 // boundaries and at the last one.
-func (s *Simulator) record(out *Outcome, stride, q int) {
+func (s *Simulator) record(out *Figures, stride, q int) {
 	n := s.n
 	u := s.u.Data
 	for i, c := range s.w.Scheme.Computational {
@@ -576,7 +576,7 @@ func (s *Simulator) sample(c, k int) complex128 {
 	if s.cached {
 		return s.held[c*s.w.Len()+k]
 	}
-	if s.m.Unquantized {
+	if s.m.SkipDAC {
 		return complex(s.w.I[c][k], s.w.Q[c][k])
 	}
 	return s.w.Quantized(c, k)

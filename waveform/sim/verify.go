@@ -11,7 +11,7 @@ import (
 type Verification struct {
 	// Model is the error model the figures were computed with.
 	Model ErrorModel
-	// Fidelity, Leakage, PeakAux and PeakExcited are those of Outcome.
+	// Fidelity, Leakage, PeakAux and PeakExcited are those of Figures.
 	Fidelity, Leakage float64
 	PeakAux           []float64
 	PeakExcited       []float64
@@ -55,7 +55,7 @@ func (v *Verification) Same(o *Verification) bool {
 	if !eq(m.AmplitudeError, n.AmplitudeError) || !eqs(m.ChannelErrors, n.ChannelErrors) || !eq(m.OnePhotonDetuning, n.OnePhotonDetuning) ||
 		!eq(m.TwoPhotonDetuning, n.TwoPhotonDetuning) || !eq(m.Decay, n.Decay) || !eq(m.Dephasing, n.Dephasing) ||
 		!eq(m.RiseTime, n.RiseTime) || m.FilterName() != n.FilterName() || m.SubSteps != n.SubSteps ||
-		!eq(m.PhaseStep, n.PhaseStep) || m.Unquantized != n.Unquantized {
+		!eq(m.PhaseStep, n.PhaseStep) || m.SkipDAC != n.SkipDAC {
 		return false
 	}
 	if !eq(v.Fidelity, o.Fidelity) || !eq(v.Leakage, o.Leakage) || !eqs(v.PeakAux, o.PeakAux) ||
@@ -89,7 +89,7 @@ func (v *Verification) Failed() []waveform.Check {
 // waveform that fails. Errors are reserved for an invalid model or a
 // waveform whose adiabaticity cannot be measured.
 func Verify(w *waveform.Waveform, m ErrorModel) (*Verification, error) {
-	out := new(Outcome)
+	out := new(Figures)
 	if err := NewSimulator(w).Run(m, out); err != nil {
 		return nil, err
 	}

@@ -20,7 +20,7 @@ func ExampleReadWaveform() {
 	plan := &waveform.Plan{
 		Scheme: holonomy.Lambda(),
 		Target: holonomy.NewMatFrom(2, 2, []complex128{r, r, r, -r}),
-		Segments: []waveform.Segment{{Kind: waveform.Cyclic, Area: 2 * math.Pi,
+		Segments: []waveform.Segment{{Kind: waveform.CyclicSegment, Area: 2 * math.Pi,
 			Shape: func(s float64, p holonomy.Point) { holonomy.LambdaPoint(p, 1, math.Pi/4, 0) }}},
 	}
 	w, err := waveform.Build(plan, wavetest.Hardware(2, 10e6))

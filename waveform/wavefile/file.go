@@ -260,7 +260,7 @@ func (f *File) doc() (*waveDoc, error) {
 		LevelDetunings: []detuningDoc{},
 		Spec:           f.Spec,
 	}
-	for _, s := range w.Spans {
+	for _, s := range w.Segments {
 		d.Segments = append(d.Segments, segmentDoc{Kind: s.Kind.String(), First: s.First, Samples: s.Len, Ramp: s.Ramp, Area: s.Area, Amplitude: s.Amplitude, MinGap: s.MinGap})
 	}
 	for c, ch := range w.Scheme.Channels {
@@ -277,7 +277,7 @@ func (f *File) doc() (*waveDoc, error) {
 			AmplitudeError: m.AmplitudeError, ChannelErrors: orEmpty(m.ChannelErrors),
 			OnePhotonDetuning: m.OnePhotonDetuning, TwoPhotonDetuning: m.TwoPhotonDetuning,
 			Decay: m.Decay, Dephasing: m.Dephasing, Filter: m.FilterName(), RiseTime: m.RiseTime, SubSteps: m.SubSteps,
-			PhaseStep: m.PhaseStep, Quantized: !m.Unquantized,
+			PhaseStep: m.PhaseStep, Quantized: !m.SkipDAC,
 		},
 		Fidelity: v.Fidelity, Leakage: v.Leakage,
 		PeakAux: orEmpty(v.PeakAux), PeakExcited: orEmpty(v.PeakExcited),

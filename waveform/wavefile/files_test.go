@@ -155,7 +155,7 @@ func TestWaveformRoundTrip(t *testing.T) {
 	}
 	w, r := f.Waveform, g.Waveform
 	if !reflect.DeepEqual(w.I, r.I) || !reflect.DeepEqual(w.Q, r.Q) || !reflect.DeepEqual(w.CodeI, r.CodeI) ||
-		!reflect.DeepEqual(w.CodeQ, r.CodeQ) || !reflect.DeepEqual(w.Detuning, r.Detuning) || !reflect.DeepEqual(w.Spans, r.Spans) ||
+		!reflect.DeepEqual(w.CodeQ, r.CodeQ) || !reflect.DeepEqual(w.Detuning, r.Detuning) || !reflect.DeepEqual(w.Segments, r.Segments) ||
 		!reflect.DeepEqual(w.Hardware, r.Hardware) || !reflect.DeepEqual(w.Scheme, r.Scheme) || !reflect.DeepEqual(w.Target, r.Target) ||
 		w.Adiabaticity != r.Adiabaticity || w.MinFidelity != r.MinFidelity || !reflect.DeepEqual(w.LevelHz, r.LevelHz) {
 		t.Error("waveform differs after the round trip")

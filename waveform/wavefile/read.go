@@ -388,7 +388,7 @@ func (d *waveDoc) file(name string) (*File, error) {
 	at := 0
 	for i, s := range d.Segments {
 		p := fmt.Sprintf("/segments/%d", i)
-		kind, err := waveform.ParseKind(s.Kind)
+		kind, err := waveform.ParseSegmentKind(s.Kind)
 		if err != nil {
 			return nil, ferr(name, p+"/kind", "%v", err)
 		}
@@ -398,13 +398,13 @@ func (d *waveDoc) file(name string) (*File, error) {
 		if s.Samples > n-at {
 			return nil, ferr(name, p+"/samples", "segment of %d samples from sample %d runs past the end (%d samples)", s.Samples, at, n)
 		}
-		if kind == waveform.Adiabatic && (s.Ramp < 1 || 2*s.Ramp >= s.Samples) {
+		if kind == waveform.AdiabaticSegment && (s.Ramp < 1 || 2*s.Ramp >= s.Samples) {
 			return nil, ferr(name, p+"/ramp_samples", "adiabatic segment of %d samples needs ramps of at least 1 and less than half of it each, has %d", s.Samples, s.Ramp)
 		}
-		if kind == waveform.Cyclic && s.Ramp != 0 {
+		if kind == waveform.CyclicSegment && s.Ramp != 0 {
 			return nil, ferr(name, p+"/ramp_samples", "cyclic segments have no ramps")
 		}
-		w.Spans = append(w.Spans, waveform.Span{Kind: kind, First: s.First, Len: s.Samples, Ramp: s.Ramp, Area: s.Area, Amplitude: s.Amplitude, MinGap: s.MinGap})
+		w.Segments = append(w.Segments, waveform.SegmentTiming{Kind: kind, First: s.First, Len: s.Samples, Ramp: s.Ramp, Area: s.Area, Amplitude: s.Amplitude, MinGap: s.MinGap})
 		at += s.Samples
 	}
 	for c := range w.I {
@@ -442,7 +442,7 @@ func (d *verificationDoc) parse(name string, nq, nch int) (*sim.Verification, er
 		Model: sim.ErrorModel{
 			AmplitudeError: m.AmplitudeError, OnePhotonDetuning: m.OnePhotonDetuning, TwoPhotonDetuning: m.TwoPhotonDetuning,
 			Decay: m.Decay, Dephasing: m.Dephasing, RiseTime: m.RiseTime, Filter: filter, SubSteps: m.SubSteps,
-			PhaseStep: m.PhaseStep, Unquantized: !m.Quantized,
+			PhaseStep: m.PhaseStep, SkipDAC: !m.Quantized,
 		},
 		Fidelity: d.Fidelity, Leakage: d.Leakage, PeakAux: d.PeakAux, PeakExcited: d.PeakExcited,
 		Adiabaticity: math.NaN(),

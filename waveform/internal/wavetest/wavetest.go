@@ -53,7 +53,7 @@ func TripodPlan(delta, alpha float64) *waveform.Plan {
 	return &waveform.Plan{
 		Scheme:       holonomy.Tripod(),
 		Target:       Rotation(delta),
-		Segments:     []waveform.Segment{{Kind: waveform.Adiabatic, Shape: SliceLoop(delta)}},
+		Segments:     []waveform.Segment{{Kind: waveform.AdiabaticSegment, Shape: SliceLoop(delta)}},
 		Adiabaticity: alpha,
 	}
 }
@@ -72,7 +72,7 @@ func LambdaPlan(theta, phi float64, target *holonomy.Mat) *waveform.Plan {
 	return &waveform.Plan{
 		Scheme: holonomy.Lambda(),
 		Target: target,
-		Segments: []waveform.Segment{{Kind: waveform.Cyclic, Area: 2 * math.Pi, Shape: func(s float64, p holonomy.Point) {
+		Segments: []waveform.Segment{{Kind: waveform.CyclicSegment, Area: 2 * math.Pi, Shape: func(s float64, p holonomy.Point) {
 			holonomy.LambdaPoint(p, 1, theta, phi)
 		}}},
 	}
