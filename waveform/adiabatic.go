@@ -10,23 +10,8 @@ import (
 // timeAdiabatic analyses the loop on a grid and chooses the amplitude, the
 // ramp time and the local-adiabatic loop time (package documentation).
 func (b *builder) timeAdiabatic(seg Segment) (*timing, error) {
-	const G = gridIntervals
 	la := newLoopAnalysis(b, seg)
-	nch := len(b.sc.Channels)
-	maxU := make([]float64, nch)
-	for i := 0; i <= G; i++ {
-		s := float64(i) / G
-		v := la.at(s, la.pts[i*la.dim:(i+1)*la.dim])
-		for c := 0; c < nch; c++ {
-			maxU[c] = math.Max(maxU[c], math.Hypot(v[2*c], v[2*c+1]))
-		}
-		for _, x := range v {
-			if !holonomy.Finite(x) {
-				return nil, fmt.Errorf("shape gives a non-finite point at s = %g", s)
-			}
-		}
-	}
-	amp, err := b.ampLimit(maxU)
+	amp, err := b.loopAmplitude(la)
 	if err != nil {
 		return nil, err
 	}
@@ -40,7 +25,46 @@ func (b *builder) timeAdiabatic(seg Segment) (*timing, error) {
 		return nil, fmt.Errorf("at the base point: %w", err)
 	}
 	t.clusters = len(b.sp.Working())
-	// Cost density on the grid (one-sided derivatives at the ends).
+	cost, err := la.costGrid(t)
+	if err != nil {
+		return nil, err
+	}
+	total, err := la.cutPieces(t, cost)
+	if err != nil {
+		return nil, err
+	}
+	t.tMain = 2 * total
+	if t.tRamp, err = b.rampTime(la, amp); err != nil {
+		return nil, err
+	}
+	return t, nil
+}
+
+// loopAmplitude evaluates the shape on the timing grid (into la.pts) and
+// returns the largest envelope its peak unit drives allow (ampLimit).
+func (b *builder) loopAmplitude(la *loopAnalysis) (float64, error) {
+	const G = gridIntervals
+	nch := len(b.sc.Channels)
+	maxU := make([]float64, nch)
+	for i := 0; i <= G; i++ {
+		s := float64(i) / G
+		v := la.at(s, la.pts[i*la.dim:(i+1)*la.dim])
+		for c := 0; c < nch; c++ {
+			maxU[c] = math.Max(maxU[c], math.Hypot(v[2*c], v[2*c+1]))
+		}
+		for _, x := range v {
+			if !holonomy.Finite(x) {
+				return 0, fmt.Errorf("shape gives a non-finite point at s = %g", s)
+			}
+		}
+	}
+	return b.ampLimit(maxU)
+}
+
+// costGrid returns the cost density on the grid (one-sided derivatives at
+// the ends) and lowers t.minGap to the smallest gap met.
+func (la *loopAnalysis) costGrid(t *timing) ([]float64, error) {
+	const G = gridIntervals
 	cost := make([]float64, G+1)
 	for i := 0; i <= G; i++ {
 		side := 0
@@ -56,7 +80,14 @@ func (b *builder) timeAdiabatic(seg Segment) (*timing, error) {
 		cost[i] = c
 		t.minGap = math.Min(t.minGap, gap)
 	}
-	// Corners, located to rounding, cut the loop into smooth pieces.
+	return cost, nil
+}
+
+// cutPieces cuts the loop at its corners (located to rounding) into smooth
+// pieces with normalised clocks, appends them to t.pieces and returns the
+// total cost ∫c ds.
+func (la *loopAnalysis) cutPieces(t *timing, cost []float64) (float64, error) {
+	const G = gridIntervals
 	bounds := append([]float64{0}, la.corners()...)
 	bounds = append(bounds, 1)
 	var total float64
@@ -64,11 +95,11 @@ func (b *builder) timeAdiabatic(seg Segment) (*timing, error) {
 		b0, b1 := bounds[j], bounds[j+1]
 		c0, g0, err := la.cost(b0, 1)
 		if err != nil {
-			return nil, err
+			return 0, err
 		}
 		c1, g1, err := la.cost(b1, -1)
 		if err != nil {
-			return nil, err
+			return 0, err
 		}
 		t.minGap = math.Min(t.minGap, math.Min(g0, g1))
 		pc := piece{s: []float64{b0}, tau: []float64{0}}
@@ -97,14 +128,18 @@ func (b *builder) timeAdiabatic(seg Segment) (*timing, error) {
 		t.pieces = append(t.pieces, pc)
 	}
 	if total <= 0 {
-		return nil, fmt.Errorf("the loop does not move the working subspace (zero length)")
+		return 0, fmt.Errorf("the loop does not move the working subspace (zero length)")
 	}
 	for i := range t.pieces {
 		t.pieces[i].frac /= total
 	}
-	t.tMain = 2 * total
-	// Ramp: adiabaticity along the amplitude ramp at the base point, and
-	// the slew limit of the sin² ramp.
+	return total, nil
+}
+
+// rampTime returns the duration of each amplitude ramp: long enough for
+// the adiabaticity along the ramp at the base point and for the slew limit
+// of the sin² ramp, and at least minRampSamples.
+func (b *builder) rampTime(la *loopAnalysis, amp float64) (float64, error) {
 	la.setPoint(b.pt, 1, la.pts)
 	b.bare.Hamiltonian(b.dh, b.pt) // ∂H/∂A
 	thr := 1e-9 * holonomy.FrobeniusNorm(b.dh)
@@ -115,21 +150,20 @@ func (b *builder) timeAdiabatic(seg Segment) (*timing, error) {
 		b.sc.Hamiltonian(b.h, b.pt)
 		b.sp.Factorize(b.h)
 		if err := b.sp.ChooseWorking(); err != nil {
-			return nil, fmt.Errorf("on the amplitude ramp at %.3g of full amplitude: %w", float64(m)/rampGrid, err)
+			return 0, fmt.Errorf("on the amplitude ramp at %.3g of full amplitude: %w", float64(m)/rampGrid, err)
 		}
 		k, _ := b.sp.AdiabaticRatio(b.dh, thr)
 		if math.IsInf(k, 1) {
-			return nil, fmt.Errorf("on the amplitude ramp at %.3g of full amplitude the computational levels are degenerate with a state they are coupled to: %w", float64(m)/rampGrid, holonomy.ErrNoSubspace)
+			return 0, fmt.Errorf("on the amplitude ramp at %.3g of full amplitude the computational levels are degenerate with a state they are coupled to: %w", float64(m)/rampGrid, holonomy.ErrNoSubspace)
 		}
 		kr = math.Max(kr, k)
 	}
 	var u0 float64
-	for c := 0; c < nch; c++ {
+	for c := range b.sc.Channels {
 		u0 = math.Max(u0, math.Hypot(la.pts[2*c], la.pts[2*c+1]))
 	}
-	t.tRamp = math.Max(math.Pi/2*amp*kr/b.alpha, amp*u0/(4*b.slew))
-	t.tRamp = math.Max(t.tRamp, minRampSamples/b.hw.SampleRate)
-	return t, nil
+	tr := math.Max(math.Pi/2*amp*kr/b.alpha, amp*u0/(4*b.slew))
+	return math.Max(tr, minRampSamples/b.hw.SampleRate), nil
 }
 
 // loopAnalysis evaluates a segment's shape on the timing grid.
