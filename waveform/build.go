@@ -227,7 +227,7 @@ func (b *builder) countSamples(tms []*timing) (int, error) {
 		limit, what = MaxSampleLimit, "sample count (waveform file bound)"
 	}
 	if n0 > limit || n > limit {
-		return 0, &LimitError{Check: NewCheck(SampleCountCheck, what, float64(n), float64(limit), "")}
+		return 0, &LimitError{Check: NewCheck(SampleCountCheck, what, float64(n), float64(limit), ""), FileBound: what != "sample count"}
 	}
 	return n, nil
 }

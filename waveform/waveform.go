@@ -85,6 +85,9 @@ func (w *Waveform) Quantized(c, k int) complex128 {
 type LimitError struct {
 	// Check holds the limit, the value the plan needs and the margin.
 	Check Check
+	// FileBound is set when the limit is the waveform file format's
+	// bound (MaxSampleLimit) rather than the hardware's.
+	FileBound bool
 }
 
 // Error says which limit is exceeded and by how much.
