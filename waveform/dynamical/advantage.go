@@ -276,16 +276,8 @@ type Comparison struct {
 // in parallel as in SweepAxis and the result does not depend on the
 // number of workers.
 func Compare(ctx context.Context, geo *waveform.Waveform, ranges []robust.Range, opt *robust.SweepOptions) (*Comparison, error) {
-	if len(ranges) == 0 {
-		return nil, errors.New("geometric advantage: no error axes given")
-	}
-	for _, r := range ranges {
-		if err := r.Validate(); err != nil {
-			return nil, fmt.Errorf("geometric advantage: %w", err)
-		}
-		if r.Axis == robust.OnePhotonAxis {
-			return nil, fmt.Errorf("geometric advantage: %s has no counterpart for a directly driven qubit; compare along %s and %s", r.Axis, robust.AmplitudeAxis, robust.TwoPhotonAxis)
-		}
+	if err := checkRanges(ranges); err != nil {
+		return nil, err
 	}
 	dyn, err := NewDynamical(geo)
 	if err != nil {
@@ -298,77 +290,19 @@ func Compare(ctx context.Context, geo *waveform.Waveform, ranges []robust.Range,
 	baseGeo := opt.BaseModel()
 	baseDyn := baseGeo
 	baseDyn.ChannelErrors = nil
-	gates := [2]*waveform.Waveform{geo, dyn.Waveform}
-	bases := [2]sim.ErrorModel{baseGeo, baseDyn}
-
-	cmp := &Comparison{Threshold: thr, Dynamical: dyn}
-	// All sweep points of both gates as one parallel job list.
-	type point struct{ gate, sweep, k int }
-	var pts []point
-	sw := [2][]*robust.Sweep{}
-	for g := range gates {
-		for i, r := range ranges {
-			x := r.Values()
-			sw[g] = append(sw[g], &robust.Sweep{Axis: r.Axis, X: x, Fidelity: make([]float64, len(x)), Leakage: make([]float64, len(x))})
-			for k := range x {
-				pts = append(pts, point{g, i, k})
-			}
-		}
+	pair := &gatePair{
+		gates: [2]*waveform.Waveform{geo, dyn.Waveform},
+		bases: [2]sim.ErrorModel{baseGeo, baseDyn},
 	}
-	err = robust.RunJobs(ctx, len(pts), opt, "geometric advantage: sweeps", func(wk *robust.Worker, j int) error {
-		p := pts[j]
-		s := sw[p.gate][p.sweep]
-		m := bases[p.gate]
-		s.Axis.Set(&m, s.X[p.k])
-		out, err := wk.Run(gates[p.gate], m)
-		if err != nil {
-			return err
-		}
-		s.Fidelity[p.k], s.Leakage[p.k] = out.Fidelity, out.Leakage
-		return nil
-	})
+	cmp := &Comparison{Threshold: thr, Dynamical: dyn}
+	sw, err := pair.sweep(ctx, ranges, opt)
 	if err != nil {
 		return nil, fmt.Errorf("geometric advantage: %w", err)
 	}
 	cmp.Geometric, cmp.DynamicalSweeps = sw[0], sw[1]
-
-	// Edge refinement: one job per gate, range and side.
-	widths := make([]robust.Width, 2*len(ranges)) // gate g, range i at g*len(ranges)+i
-	type edge struct{ gate, sweep, side int }
-	var edges []edge
-	for g := range gates {
-		for i := range ranges {
-			for side := 0; side < 2; side++ {
-				edges = append(edges, edge{g, i, side})
-			}
-		}
-	}
-	res := make([]robust.Edge, len(edges))
-	err = robust.RunJobs(ctx, len(edges), opt, "geometric advantage: edges", func(wk *robust.Worker, j int) error {
-		e := edges[j]
-		r, err := robust.FindEdge(ctx, wk, gates[e.gate], bases[e.gate], ranges[e.sweep], sw[e.gate][e.sweep], e.side, thr)
-		if err != nil {
-			return err
-		}
-		res[j] = r
-		return nil
-	})
+	widths, err := pair.widths(ctx, ranges, sw, opt, thr)
 	if err != nil {
 		return nil, fmt.Errorf("geometric advantage: %w", err)
-	}
-	for j, e := range edges {
-		w := &widths[e.gate*len(ranges)+e.sweep]
-		if e.side == 0 {
-			w.Low, w.LowOpen = res[j].X, res[j].Open
-		} else {
-			w.High, w.HighOpen = res[j].X, res[j].Open
-		}
-	}
-	// A fidelity below the threshold at zero error leaves no region.
-	for j, e := range edges {
-		if res[j].Zero {
-			widths[e.gate*len(ranges)+e.sweep] = robust.Width{}
-		}
 	}
 	for i, r := range ranges {
 		gw, dw := widths[i], widths[len(ranges)+i]
@@ -386,6 +320,104 @@ func Compare(ctx context.Context, geo *waveform.Waveform, ranges []robust.Range,
 		cmp.Rows = append(cmp.Rows, row)
 	}
 	return cmp, nil
+}
+
+// checkRanges refuses an empty or invalid list of error axes and the
+// one-photon detuning.
+func checkRanges(ranges []robust.Range) error {
+	if len(ranges) == 0 {
+		return errors.New("geometric advantage: no error axes given")
+	}
+	for _, r := range ranges {
+		if err := r.Validate(); err != nil {
+			return fmt.Errorf("geometric advantage: %w", err)
+		}
+		if r.Axis == robust.OnePhotonAxis {
+			return fmt.Errorf("geometric advantage: %s has no counterpart for a directly driven qubit; compare along %s and %s", r.Axis, robust.AmplitudeAxis, robust.TwoPhotonAxis)
+		}
+	}
+	return nil
+}
+
+// gatePair is the geometric gate (index 0) and the dynamical gate (1)
+// with the error model each is swept around.
+type gatePair struct {
+	gates [2]*waveform.Waveform
+	bases [2]sim.ErrorModel
+}
+
+// sweep runs all sweep points of both gates as one parallel job list and
+// returns the sweeps of each gate in the order of ranges.
+func (gp *gatePair) sweep(ctx context.Context, ranges []robust.Range, opt *robust.SweepOptions) ([2][]*robust.Sweep, error) {
+	type point struct{ gate, sweep, k int }
+	var pts []point
+	sw := [2][]*robust.Sweep{}
+	for g := range gp.gates {
+		for i, r := range ranges {
+			x := r.Values()
+			sw[g] = append(sw[g], &robust.Sweep{Axis: r.Axis, X: x, Fidelity: make([]float64, len(x)), Leakage: make([]float64, len(x))})
+			for k := range x {
+				pts = append(pts, point{g, i, k})
+			}
+		}
+	}
+	err := robust.RunJobs(ctx, len(pts), opt, "geometric advantage: sweeps", func(wk *robust.Worker, j int) error {
+		p := pts[j]
+		s := sw[p.gate][p.sweep]
+		m := gp.bases[p.gate]
+		s.Axis.Set(&m, s.X[p.k])
+		out, err := wk.Run(gp.gates[p.gate], m)
+		if err != nil {
+			return err
+		}
+		s.Fidelity[p.k], s.Leakage[p.k] = out.Fidelity, out.Leakage
+		return nil
+	})
+	return sw, err
+}
+
+// widths refines both edges of the robust region of each gate along each
+// range (one parallel job per gate, range and side) and returns the widths,
+// gate g and range i at g·len(ranges)+i.
+func (gp *gatePair) widths(ctx context.Context, ranges []robust.Range, sw [2][]*robust.Sweep, opt *robust.SweepOptions, thr float64) ([]robust.Width, error) {
+	widths := make([]robust.Width, 2*len(ranges))
+	type edge struct{ gate, sweep, side int }
+	var edges []edge
+	for g := range gp.gates {
+		for i := range ranges {
+			for side := 0; side < 2; side++ {
+				edges = append(edges, edge{g, i, side})
+			}
+		}
+	}
+	res := make([]robust.Edge, len(edges))
+	err := robust.RunJobs(ctx, len(edges), opt, "geometric advantage: edges", func(wk *robust.Worker, j int) error {
+		e := edges[j]
+		r, err := robust.FindEdge(ctx, wk, gp.gates[e.gate], gp.bases[e.gate], ranges[e.sweep], sw[e.gate][e.sweep], e.side, thr)
+		if err != nil {
+			return err
+		}
+		res[j] = r
+		return nil
+	})
+	if err != nil {
+		return nil, err
+	}
+	for j, e := range edges {
+		w := &widths[e.gate*len(ranges)+e.sweep]
+		if e.side == 0 {
+			w.Low, w.LowOpen = res[j].X, res[j].Open
+		} else {
+			w.High, w.HighOpen = res[j].X, res[j].Open
+		}
+	}
+	// A fidelity below the threshold at zero error leaves no region.
+	for j, e := range edges {
+		if res[j].Zero {
+			widths[e.gate*len(ranges)+e.sweep] = robust.Width{}
+		}
+	}
+	return widths, nil
 }
 
 // advantageNote explains open edges and the pulse-free dynamical gate.
