@@ -6,6 +6,7 @@ import (
 	"github.com/loopgate/loopgate/design/internal/atomicfile"
 	"github.com/loopgate/loopgate/waveform"
 	"github.com/loopgate/loopgate/waveform/sim"
+	"github.com/loopgate/loopgate/waveform/wavefile"
 )
 
 // Outcome is what Design and VerifyFile report: the figures of merit, the
@@ -121,14 +122,8 @@ type Figures struct {
 // CheckRow is one check: value, limit, margin and verdict.
 type CheckRow struct {
 	// Kind says what is checked (not printed: Name says it in words).
-	Kind   waveform.CheckKind `json:"-"`
-	Name   string             `json:"name"`
-	Value  float64            `json:"value"`
-	Limit  float64            `json:"limit"`
-	Margin float64            `json:"margin"`
-	Unit   string             `json:"unit"`
-	Bound  string             `json:"bound"`
-	Pass   bool               `json:"pass"`
+	Kind waveform.CheckKind `json:"-"`
+	wavefile.CheckRecord
 }
 
 // IsFidelity reports whether the row is the fidelity goal.
@@ -181,12 +176,9 @@ func newOutcome(cmd, source, title, target string, w *waveform.Waveform, a *anal
 		Caution:    Caution,
 	}
 	for _, c := range a.ideal.Checks {
-		bound := "max"
-		if c.Lower {
-			bound = "min"
-		}
-		o.Checks = append(o.Checks, CheckRow{Kind: c.Kind, Name: c.Name, Value: c.Value, Limit: c.Limit, Margin: c.Margin, Unit: c.Unit, Bound: bound, Pass: c.Pass})
+		o.Checks = append(o.Checks, CheckRow{Kind: c.Kind, CheckRecord: wavefile.NewCheckRecord(c)})
 	}
+
 	for _, b := range a.budget {
 		o.Budget = append(o.Budget, BudgetRow{Term: b.Term, Infidelity: b.Infidelity, Note: b.Note, Total: b.Total})
 	}

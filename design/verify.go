@@ -163,7 +163,7 @@ func VerifyFile(ctx context.Context, path string, opt VerifyOptions) (*Outcome, 
 	o.Reproduced = &same
 	if !same {
 		o.Pass = false
-		o.Checks = append(o.Checks, CheckRow{Name: "reproduces the stored figures", Bound: "equal", Pass: false})
+		o.Checks = append(o.Checks, CheckRow{CheckRecord: wavefile.CheckRecord{Name: "reproduces the stored figures", Bound: "equal", Pass: false}})
 	}
 	if opt.Report != "" {
 		data := reportData(o, w, nil, a, "")

@@ -96,12 +96,7 @@ func sweepFigure(sw []Sweep) (figure, error) {
 	}
 	tl, _ := line([]float64{0, 1}, []float64{0, 0}, thr, 1.1)
 	key.Add(fmt.Sprintf("F = %g", Threshold), tl)
-	svg, err := renderSVG(w, h, "Robustness curves: infidelity against each error for the geometric and the dynamical gate", func(dc draw.Canvas) error {
-		area, kc := panels(dc)
-		alignPanels(ps, rows, cols, area)
-		drawKey(kc, key)
-		return nil
-	})
+	svg, err := renderGrid(w, h, "Robustness curves: infidelity against each error for the geometric and the dynamical gate", ps, rows, cols, key)
 	if err != nil {
 		return figure{}, err
 	}

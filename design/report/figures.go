@@ -103,6 +103,17 @@ func gridLayout(n, maxCols int) (rows, cols int) {
 	return rows, cols
 }
 
+// renderGrid renders plots laid out in a rows×cols grid (alignPanels)
+// with the key beside them, as an SVG of w×h points labelled label.
+func renderGrid(w, h float64, label string, ps []*plot.Plot, rows, cols int, key plot.Legend) (string, error) {
+	return renderSVG(w, h, label, func(dc draw.Canvas) error {
+		area, kc := panels(dc)
+		alignPanels(ps, rows, cols, area)
+		drawKey(kc, key)
+		return nil
+	})
+}
+
 // alignPanels lays out plots in a grid in area, aligning their data areas.
 func alignPanels(ps []*plot.Plot, rows, cols int, area draw.Canvas) {
 	grid := make([][]*plot.Plot, rows)
@@ -237,12 +248,7 @@ func waveformFigure(ws []Waveform) (figure, error) {
 	}
 	pad := 0.06 * (hi - lo)
 	pp.Y.Min, pp.Y.Max = lo-pad, hi+pad
-	svg, err := renderSVG(w, h, "Waveforms per channel: Rabi frequency and phase against time", func(dc draw.Canvas) error {
-		area, kc := panels(dc)
-		alignPanels([]*plot.Plot{pa, pp}, 2, 1, area)
-		drawKey(kc, key)
-		return nil
-	})
+	svg, err := renderGrid(w, h, "Waveforms per channel: Rabi frequency and phase against time", []*plot.Plot{pa, pp}, 2, 1, key)
 	if err != nil {
 		return figure{}, err
 	}
@@ -321,12 +327,7 @@ func populationFigure(pops []Populations) (figure, error) {
 		}
 		ps = append(ps, p)
 	}
-	svg, err := renderSVG(w, h, "Level populations over time for each computational input state", func(dc draw.Canvas) error {
-		area, kc := panels(dc)
-		alignPanels(ps, rows, cols, area)
-		drawKey(kc, key)
-		return nil
-	})
+	svg, err := renderGrid(w, h, "Level populations over time for each computational input state", ps, rows, cols, key)
 	if err != nil {
 		return figure{}, err
 	}

@@ -81,36 +81,11 @@ func TestLambdaHadamard(t *testing.T) {
 func TestTwoSegmentLoop(t *testing.T) {
 	theta, phi := math.Pi/3, 0.4
 	for _, gamma := range []float64{0, math.Pi / 2, 2.2} {
-		b := []complex128{cmplx.Rect(math.Sin(theta/2), -phi), complex(-math.Cos(theta/2), 0)}
-		f := 1 + cmplx.Rect(1, -gamma)
-		target := holonomy.NewMat(2, 2)
-		for i := 0; i < 2; i++ {
-			for j := 0; j < 2; j++ {
-				v := -f * b[i] * cmplx.Conj(b[j])
-				if i == j {
-					v++
-				}
-				target.Set(i, j, v)
-			}
-		}
+		p := twoSegmentPlan(theta, phi, gamma)
 		if gamma == 0 {
-			if d := holonomy.FrobeniusDist(target, wavetest.NDotSigma(theta, phi)); d > 1e-15 {
+			if d := holonomy.FrobeniusDist(p.Target, wavetest.NDotSigma(theta, phi)); d > 1e-15 {
 				t.Fatalf("γ = 0 target differs from n·σ by %g", d)
 			}
-		}
-		g := gamma
-		p := &waveform.Plan{
-			Scheme: holonomy.Lambda(),
-			Target: target,
-			Segments: []waveform.Segment{
-				{Kind: waveform.CyclicSegment, Area: math.Pi, Shape: func(s float64, p holonomy.Point) { holonomy.LambdaPoint(p, 1, theta, phi) }},
-				{Kind: waveform.CyclicSegment, Area: math.Pi, Shape: func(s float64, p holonomy.Point) {
-					holonomy.LambdaPoint(p, 1, theta, phi)
-					for c := range p.Drive {
-						p.Drive[c] *= cmplx.Rect(1, g)
-					}
-				}},
-			},
 		}
 		w := wavetest.MustBuild(t, p, wavetest.Hardware(2, 10e6))
 		v := wavetest.Must(Verify(w, ErrorModel{}))(t)

@@ -152,14 +152,14 @@ type detuningDoc struct {
 }
 
 type verificationDoc struct {
-	Model        modelDoc   `json:"model"`
-	Fidelity     float64    `json:"fidelity"`
-	Leakage      float64    `json:"leakage"`
-	PeakAux      []float64  `json:"peak_aux_population"`
-	PeakExcited  []float64  `json:"peak_excited_population"`
-	Adiabaticity *float64   `json:"adiabaticity"`
-	Checks       []checkDoc `json:"checks"`
-	Pass         bool       `json:"pass"`
+	Model        modelDoc      `json:"model"`
+	Fidelity     float64       `json:"fidelity"`
+	Leakage      float64       `json:"leakage"`
+	PeakAux      []float64     `json:"peak_aux_population"`
+	PeakExcited  []float64     `json:"peak_excited_population"`
+	Adiabaticity *float64      `json:"adiabaticity"`
+	Checks       []CheckRecord `json:"checks"`
+	Pass         bool          `json:"pass"`
 }
 
 type modelDoc struct {
@@ -179,7 +179,9 @@ type modelDoc struct {
 	Quantized bool    `json:"quantized"`
 }
 
-type checkDoc struct {
+// CheckRecord is a check as files and printed outcomes carry it: the
+// display name, the numbers, the bound ("max" or "min") and the verdict.
+type CheckRecord struct {
 	Name   string  `json:"name"`
 	Value  float64 `json:"value"`
 	Limit  float64 `json:"limit"`
@@ -215,14 +217,19 @@ func newMatDoc(m *holonomy.Mat) matDoc {
 	return d
 }
 
-func newCheckDocs(cs []waveform.Check) []checkDoc {
-	out := []checkDoc{}
+// NewCheckRecord returns the record of c.
+func NewCheckRecord(c waveform.Check) CheckRecord {
+	b := "max"
+	if c.Lower {
+		b = "min"
+	}
+	return CheckRecord{Name: c.Name, Value: c.Value, Limit: c.Limit, Margin: c.Margin, Unit: c.Unit, Bound: b, Pass: c.Pass}
+}
+
+func newCheckDocs(cs []waveform.Check) []CheckRecord {
+	out := []CheckRecord{}
 	for _, c := range cs {
-		b := "max"
-		if c.Lower {
-			b = "min"
-		}
-		out = append(out, checkDoc{Name: c.Name, Value: c.Value, Limit: c.Limit, Margin: c.Margin, Unit: c.Unit, Bound: b, Pass: c.Pass})
+		out = append(out, NewCheckRecord(c))
 	}
 	return out
 }
