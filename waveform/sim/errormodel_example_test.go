@@ -8,6 +8,7 @@ import (
 
 	"github.com/loopgate/loopgate/holonomy"
 	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/internal/wavetest"
 	"github.com/loopgate/loopgate/waveform/sim"
 )
 
@@ -28,7 +29,7 @@ func ExampleErrorModel() {
 		Segments: []waveform.Segment{{Kind: waveform.CyclicSegment, Area: 2 * math.Pi,
 			Shape: func(s float64, p holonomy.Point) { holonomy.LambdaPoint(p, 1, theta, phi) }}},
 	}
-	w, err := waveform.Build(plan, demoHardware(2))
+	w, err := waveform.Build(plan, wavetest.Hardware(2, 10e6))
 	if err != nil {
 		log.Fatal(err)
 	}

@@ -7,22 +7,9 @@ import (
 
 	"github.com/loopgate/loopgate/holonomy"
 	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/internal/wavetest"
 	"github.com/loopgate/loopgate/waveform/sim"
 )
-
-// demoHardware is an invented AWG: 1 GS/s, 14-bit DAC, 10 MHz Rabi limit
-// on every channel, calibrated at 12 MHz full scale.
-func demoHardware(channels int) waveform.Hardware {
-	hw := waveform.Hardware{
-		SampleRate: 1e9, MaxSlew: 2e15, Granularity: 16, MaxSamples: 65536,
-		DACBits: 14, MinDuration: 0, MaxDuration: 20e-6,
-	}
-	for c := 0; c < channels; c++ {
-		hw.MaxRabi = append(hw.MaxRabi, 10e6)
-		hw.FullScale = append(hw.FullScale, 12e6)
-	}
-	return hw
-}
 
 // An adiabatic tripod gate: the "orange slice" loop of opening π/4 on the
 // sphere of normalised real drives rotates the qubit by the enclosed solid
@@ -45,7 +32,7 @@ func ExampleVerify() {
 		Target:   holonomy.NewMatFrom(2, 2, []complex128{c, -s, s, c}),
 		Segments: []waveform.Segment{{Kind: waveform.AdiabaticSegment, Shape: loop}},
 	}
-	w, err := waveform.Build(plan, demoHardware(3))
+	w, err := waveform.Build(plan, wavetest.Hardware(3, 10e6))
 	if err != nil {
 		log.Fatal(err)
 	}
@@ -69,14 +56,9 @@ func ExampleVerify() {
 // A Simulator runs many error models on one waveform without allocating:
 // here the fidelity of the Λ Hadamard under amplitude errors.
 func ExampleSimulator() {
-	r := complex(1/math.Sqrt2, 0)
-	plan := &waveform.Plan{
-		Scheme: holonomy.Lambda(),
-		Target: holonomy.NewMatFrom(2, 2, []complex128{r, r, r, -r}),
-		Segments: []waveform.Segment{{Kind: waveform.CyclicSegment, Area: 2 * math.Pi,
-			Shape: func(s float64, p holonomy.Point) { holonomy.LambdaPoint(p, 1, math.Pi/4, 0) }}},
-	}
-	w, err := waveform.Build(plan, demoHardware(2))
+	// The Λ Hadamard of Sjöqvist et al. (θ = π/4, φ = 0), as in ExampleBuild.
+	plan := wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard())
+	w, err := waveform.Build(plan, wavetest.Hardware(2, 10e6))
 	if err != nil {
 		log.Fatal(err)
 	}

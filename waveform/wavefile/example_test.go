@@ -6,7 +6,6 @@ import (
 	"log"
 	"math"
 
-	"github.com/loopgate/loopgate/holonomy"
 	"github.com/loopgate/loopgate/waveform"
 	"github.com/loopgate/loopgate/waveform/internal/wavetest"
 	"github.com/loopgate/loopgate/waveform/sim"
@@ -16,13 +15,8 @@ import (
 // Writing and reading a waveform file: the file carries its format name
 // and version, and reading it back validates it against the schema.
 func ExampleReadWaveform() {
-	r := complex(1/math.Sqrt2, 0)
-	plan := &waveform.Plan{
-		Scheme: holonomy.Lambda(),
-		Target: holonomy.NewMatFrom(2, 2, []complex128{r, r, r, -r}),
-		Segments: []waveform.Segment{{Kind: waveform.CyclicSegment, Area: 2 * math.Pi,
-			Shape: func(s float64, p holonomy.Point) { holonomy.LambdaPoint(p, 1, math.Pi/4, 0) }}},
-	}
+	// The Λ Hadamard of Sjöqvist et al. (θ = π/4, φ = 0), as in ExampleBuild.
+	plan := wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard())
 	w, err := waveform.Build(plan, wavetest.Hardware(2, 10e6))
 	if err != nil {
 		log.Fatal(err)
