@@ -57,46 +57,7 @@ type BudgetRow struct {
 //   - total: 1 − F with all of m on; its note also gives the sum of the
 //     separate lines, which differs from the total when terms interact.
 func Budget(ctx context.Context, w *waveform.Waveform, m sim.ErrorModel, opt *SweepOptions) ([]BudgetRow, error) {
-	ideal := sim.ErrorModel{SkipDAC: true}
-	type term struct {
-		name, note string
-		model      sim.ErrorModel
-	}
-	terms := []term{{model: ideal}} // index 0: ideal, also the leakage line
-	add := func(on bool, name, note string, set func(*sim.ErrorModel)) {
-		if !on {
-			return
-		}
-		mm := ideal
-		set(&mm)
-		terms = append(terms, term{name: name, note: note, model: mm})
-	}
-	add(m.Decay > 0, "loss (decay Γ)",
-		fmt.Sprintf("Γ = %.4g /s from every excited level, non-Hermitian loss; alone on the ideal model", m.Decay),
-		func(e *sim.ErrorModel) { e.Decay = m.Decay })
-	add(m.Dephasing > 0, "dephasing (γ_φ)",
-		fmt.Sprintf("γ_φ = %.4g /s on the qubit levels, Lindblad master equation; alone on the ideal model", m.Dephasing),
-		func(e *sim.ErrorModel) { e.Dephasing = m.Dephasing })
-	add(!m.SkipDAC, "quantisation (DAC)",
-		fmt.Sprintf("drive from the %d-bit DAC codes instead of the unquantised samples; alone on the ideal model", w.Hardware.DACBits),
-		func(e *sim.ErrorModel) { e.SkipDAC = false })
-	add(m.PhaseStep > 0, "phase resolution",
-		fmt.Sprintf("drive phases rounded to multiples of %.4g rad (%.4g°); alone on the ideal model", m.PhaseStep, m.PhaseStep*180/math.Pi),
-		func(e *sim.ErrorModel) { e.PhaseStep = m.PhaseStep })
-	add(m.RiseTime > 0, "bandwidth (low-pass)",
-		fmt.Sprintf("%s low-pass, 10–90%% rise time %.4g ns, %d sub-steps per sample; alone on the ideal model", m.Filter, m.RiseTime*1e9, subSteps(m.SubSteps)),
-		func(e *sim.ErrorModel) { e.RiseTime, e.Filter, e.SubSteps = m.RiseTime, m.Filter, m.SubSteps })
-	add(m.AmplitudeError != 0 || anyNonZero(m.ChannelErrors), "amplitude error",
-		amplitudeNote(w, m),
-		func(e *sim.ErrorModel) { e.AmplitudeError, e.ChannelErrors = m.AmplitudeError, m.ChannelErrors })
-	add(m.OnePhotonDetuning != 0, "one-photon detuning",
-		fmt.Sprintf("Δ/2π = %s on every excited level; alone on the ideal model", waveform.FormatSI(m.OnePhotonDetuning, "Hz")),
-		func(e *sim.ErrorModel) { e.OnePhotonDetuning = m.OnePhotonDetuning })
-	add(m.TwoPhotonDetuning != 0, "two-photon detuning",
-		fmt.Sprintf("δ/2π = %s on the second qubit level; alone on the ideal model", waveform.FormatSI(m.TwoPhotonDetuning, "Hz")),
-		func(e *sim.ErrorModel) { e.TwoPhotonDetuning = m.TwoPhotonDetuning })
-	terms = append(terms, term{name: "total", model: m})
-
+	terms := budgetTerms(w, m)
 	outs := make([]sim.Figures, len(terms))
 	err := RunJobs(ctx, len(terms), opt, "error budget", func(wk *Worker, k int) error {
 		out, err := wk.Run(w, terms[k].model)
@@ -136,6 +97,54 @@ func Budget(ctx context.Context, w *waveform.Waveform, m sim.ErrorModel, opt *Sw
 	}
 	rows = append(rows, BudgetRow{Term: "total", Infidelity: total, Alone: total, Note: note, Total: true})
 	return rows, nil
+}
+
+// budgetTerm is one simulation of the error budget.
+type budgetTerm struct {
+	name, note string
+	model      sim.ErrorModel
+}
+
+// budgetTerms returns the models of the budget: index 0 the ideal model
+// (also the leakage line), then each term of m that is on alone on the
+// ideal model, then m itself (the total).
+func budgetTerms(w *waveform.Waveform, m sim.ErrorModel) []budgetTerm {
+	ideal := sim.ErrorModel{SkipDAC: true}
+	type term = budgetTerm
+	terms := []term{{model: ideal}}
+	add := func(on bool, name, note string, set func(*sim.ErrorModel)) {
+		if !on {
+			return
+		}
+		mm := ideal
+		set(&mm)
+		terms = append(terms, term{name: name, note: note, model: mm})
+	}
+	add(m.Decay > 0, "loss (decay Γ)",
+		fmt.Sprintf("Γ = %.4g /s from every excited level, non-Hermitian loss; alone on the ideal model", m.Decay),
+		func(e *sim.ErrorModel) { e.Decay = m.Decay })
+	add(m.Dephasing > 0, "dephasing (γ_φ)",
+		fmt.Sprintf("γ_φ = %.4g /s on the qubit levels, Lindblad master equation; alone on the ideal model", m.Dephasing),
+		func(e *sim.ErrorModel) { e.Dephasing = m.Dephasing })
+	add(!m.SkipDAC, "quantisation (DAC)",
+		fmt.Sprintf("drive from the %d-bit DAC codes instead of the unquantised samples; alone on the ideal model", w.Hardware.DACBits),
+		func(e *sim.ErrorModel) { e.SkipDAC = false })
+	add(m.PhaseStep > 0, "phase resolution",
+		fmt.Sprintf("drive phases rounded to multiples of %.4g rad (%.4g°); alone on the ideal model", m.PhaseStep, m.PhaseStep*180/math.Pi),
+		func(e *sim.ErrorModel) { e.PhaseStep = m.PhaseStep })
+	add(m.RiseTime > 0, "bandwidth (low-pass)",
+		fmt.Sprintf("%s low-pass, 10–90%% rise time %.4g ns, %d sub-steps per sample; alone on the ideal model", m.Filter, m.RiseTime*1e9, subSteps(m.SubSteps)),
+		func(e *sim.ErrorModel) { e.RiseTime, e.Filter, e.SubSteps = m.RiseTime, m.Filter, m.SubSteps })
+	add(m.AmplitudeError != 0 || anyNonZero(m.ChannelErrors), "amplitude error",
+		amplitudeNote(w, m),
+		func(e *sim.ErrorModel) { e.AmplitudeError, e.ChannelErrors = m.AmplitudeError, m.ChannelErrors })
+	add(m.OnePhotonDetuning != 0, "one-photon detuning",
+		fmt.Sprintf("Δ/2π = %s on every excited level; alone on the ideal model", waveform.FormatSI(m.OnePhotonDetuning, "Hz")),
+		func(e *sim.ErrorModel) { e.OnePhotonDetuning = m.OnePhotonDetuning })
+	add(m.TwoPhotonDetuning != 0, "two-photon detuning",
+		fmt.Sprintf("δ/2π = %s on the second qubit level; alone on the ideal model", waveform.FormatSI(m.TwoPhotonDetuning, "Hz")),
+		func(e *sim.ErrorModel) { e.TwoPhotonDetuning = m.TwoPhotonDetuning })
+	return append(terms, term{name: "total", model: m})
 }
 
 func subSteps(n int) int {
