@@ -342,18 +342,38 @@ func (d *waveDoc) file(name string) (*File, error) {
 		CodeI: make([][]int32, nch), CodeQ: make([][]int32, nch),
 		Detuning: make([][]float64, nlev),
 	}
+	if err := d.channels(name, w); err != nil {
+		return nil, err
+	}
+	if err := d.levelDetunings(name, w); err != nil {
+		return nil, err
+	}
+	if err := d.segments(name, w); err != nil {
+		return nil, err
+	}
+	v, err := d.Verification.parse(name, nq, nch)
+	if err != nil {
+		return nil, err
+	}
+	return &File{ToolVersion: d.ToolVersion, SpecSHA256: d.SpecSHA256, Seed: d.Seed, Spec: d.Spec, Waveform: w, Verification: v}, nil
+}
+
+// channels checks the samples and DAC codes of every channel against the
+// scheme and the hardware and stores them in w.
+func (d *waveDoc) channels(name string, w *waveform.Waveform) error {
+	sc, hw, n := w.Scheme, &w.Hardware, d.Samples
 	mc := hw.MaxCode()
 	for c, ch := range d.Channels {
 		p := fmt.Sprintf("/channels/%d", c)
 		if ch.Name != sc.Channels[c].Name {
-			return nil, ferr(name, p+"/name", "channel %q where the scheme has %q", ch.Name, sc.Channels[c].Name)
+			return ferr(name, p+"/name", "channel %q where the scheme has %q", ch.Name, sc.Channels[c].Name)
 		}
 		for _, a := range []struct {
 			key string
 			n   int
 		}{{"i_hz", len(ch.I)}, {"q_hz", len(ch.Q)}, {"i_code", len(ch.CodeI)}, {"q_code", len(ch.CodeQ)}} {
 			if a.n != n {
-				return nil, ferr(name, p+"/"+a.key, "%d samples where the file declares %d", a.n, n)
+				return ferr(name, p+"/"+a.key, "%d samples where the file declares %d", a.n, n)
 			}
 		}
 		fs := hw.FullScale[c]
@@ -365,44 +385,57 @@ func (d *waveDoc) file(name string) (*File, error) {
 			}{{"i_code", ch.I[k], ch.CodeI[k]}, {"q_code", ch.Q[k], ch.CodeQ[k]}} {
 				want, err := waveform.DACCode(x.v, fs, mc)
 				if err != nil || want != x.code {
-					return nil, ferr(name, fmt.Sprintf("%s/%s/%d", p, x.key, k), "DAC code %d does not match the sample: round(x/full_scale × %g) = %d", x.code, mc, want)
+					return ferr(name, fmt.Sprintf("%s/%s/%d", p, x.key, k), "DAC code %d does not match the sample: round(x/full_scale × %g) = %d", x.code, mc, want)
 				}
 			}
 		}
 		w.I[c], w.Q[c], w.CodeI[c], w.CodeQ[c] = ch.I, ch.Q, ch.CodeI, ch.CodeQ
 	}
+	return nil
+}
+
+// levelDetunings checks the controlled detuning tracks and stores them in w.
+func (d *waveDoc) levelDetunings(name string, w *waveform.Waveform) error {
+	sc, n := w.Scheme, d.Samples
 	for i, t := range d.LevelDetunings {
 		p := fmt.Sprintf("/level_detunings/%d", i)
 		k := sc.LevelIndex(t.Level)
 		if k < 0 {
-			return nil, ferr(name, p+"/level", "level %q is not in the scheme", t.Level)
+			return ferr(name, p+"/level", "level %q is not in the scheme", t.Level)
 		}
 		if w.Detuning[k] != nil {
-			return nil, ferr(name, p+"/level", "level %q has two detuning tracks", t.Level)
+			return ferr(name, p+"/level", "level %q has two detuning tracks", t.Level)
 		}
 		if len(t.Hz) != n {
-			return nil, ferr(name, p+"/hz", "%d samples where the file declares %d", len(t.Hz), n)
+			return ferr(name, p+"/hz", "%d samples where the file declares %d", len(t.Hz), n)
 		}
 		w.Detuning[k] = t.Hz
 	}
+	return nil
+}
+
+// segments checks that the segments tile the samples from sample 0, with
+// only zero samples in the padding after them, and stores them in w.
+func (d *waveDoc) segments(name string, w *waveform.Waveform) error {
+	n := d.Samples
 	at := 0
 	for i, s := range d.Segments {
 		p := fmt.Sprintf("/segments/%d", i)
 		kind, err := waveform.ParseSegmentKind(s.Kind)
 		if err != nil {
-			return nil, ferr(name, p+"/kind", "%v", err)
+			return ferr(name, p+"/kind", "%v", err)
 		}
 		if s.First != at {
-			return nil, ferr(name, p+"/first_sample", "segment starts at sample %d; expected %d (segments are contiguous from sample 0)", s.First, at)
+			return ferr(name, p+"/first_sample", "segment starts at sample %d; expected %d (segments are contiguous from sample 0)", s.First, at)
 		}
 		if s.Samples > n-at {
-			return nil, ferr(name, p+"/samples", "segment of %d samples from sample %d runs past the end (%d samples)", s.Samples, at, n)
+			return ferr(name, p+"/samples", "segment of %d samples from sample %d runs past the end (%d samples)", s.Samples, at, n)
 		}
 		if kind == waveform.AdiabaticSegment && (s.Ramp < 1 || 2*s.Ramp >= s.Samples) {
-			return nil, ferr(name, p+"/ramp_samples", "adiabatic segment of %d samples needs ramps of at least 1 and less than half of it each, has %d", s.Samples, s.Ramp)
+			return ferr(name, p+"/ramp_samples", "adiabatic segment of %d samples needs ramps of at least 1 and less than half of it each, has %d", s.Samples, s.Ramp)
 		}
 		if kind == waveform.CyclicSegment && s.Ramp != 0 {
-			return nil, ferr(name, p+"/ramp_samples", "cyclic segments have no ramps")
+			return ferr(name, p+"/ramp_samples", "cyclic segments have no ramps")
 		}
 		w.Segments = append(w.Segments, waveform.SegmentTiming{Kind: kind, First: s.First, Len: s.Samples, Ramp: s.Ramp, Area: s.Area, Amplitude: s.Amplitude, MinGap: s.MinGap})
 		at += s.Samples
@@ -410,15 +443,11 @@ func (d *waveDoc) file(name string) (*File, error) {
 	for c := range w.I {
 		for k := at; k < n; k++ {
 			if w.I[c][k] != 0 || w.Q[c][k] != 0 {
-				return nil, ferr(name, fmt.Sprintf("/channels/%d/i_hz/%d", c, k), "sample %d lies in the padding after the last segment but is not zero", k)
+				return ferr(name, fmt.Sprintf("/channels/%d/i_hz/%d", c, k), "sample %d lies in the padding after the last segment but is not zero", k)
 			}
 		}
 	}
-	v, err := d.Verification.parse(name, nq, nch)
-	if err != nil {
-		return nil, err
-	}
-	return &File{ToolVersion: d.ToolVersion, SpecSHA256: d.SpecSHA256, Seed: d.Seed, Spec: d.Spec, Waveform: w, Verification: v}, nil
+	return nil
 }
 
 // parse checks the verification document.
