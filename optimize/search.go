@@ -298,24 +298,8 @@ func (s *Search) Run(ctx context.Context) (*Result, error) {
 		return nil, err
 	}
 	o := newObjective(s, c)
-	dim := s.Shape.NumParams()
-	scale := c.scale
-	ms := &multiStart{
-		dim: dim, restarts: c.restarts, maxEvals: c.maxEvals, target: c.target, goal: searchMargin * c.target,
-		simplex: 0.25 * scale, patience: 30 * dim, progress: 1e-3,
-		rng: rand.New(rand.NewPCG(s.Seed, 0x6c6f6f70)),
-		draw: func(rng *rand.Rand, x []float64) {
-			for i := range x {
-				x[i] = (2*rng.Float64() - 1) * scale
-			}
-		},
-		eval:       o.nominal,
-		needTarget: true,
-	}
-	if s.Start != nil {
-		ms.starts = [][]float64{s.Start}
-	}
-	best, err := ms.run(ctx)
+	dim, scale := s.Shape.NumParams(), c.scale
+	best, err := s.newMultiStart(o, c).run(ctx)
 	if err != nil {
 		return nil, err
 	}
@@ -368,6 +352,29 @@ func (s *Search) Run(ctx context.Context) (*Result, error) {
 		res.Robust = rep
 	}
 	return res, nil
+}
+
+// newMultiStart returns the seeded multi-start Nelder–Mead of Run on the
+// nominal objective o, with starting points drawn uniformly from
+// [−scale, scale] in every parameter (and s.Start first when given).
+func (s *Search) newMultiStart(o *objective, c searchConfig) *multiStart {
+	dim, scale := s.Shape.NumParams(), c.scale
+	ms := &multiStart{
+		dim: dim, restarts: c.restarts, maxEvals: c.maxEvals, target: c.target, goal: searchMargin * c.target,
+		simplex: 0.25 * scale, patience: 30 * dim, progress: 1e-3,
+		rng: rand.New(rand.NewPCG(s.Seed, 0x6c6f6f70)),
+		draw: func(rng *rand.Rand, x []float64) {
+			for i := range x {
+				x[i] = (2*rng.Float64() - 1) * scale
+			}
+		},
+		eval:       o.nominal,
+		needTarget: true,
+	}
+	if s.Start != nil {
+		ms.starts = [][]float64{s.Start}
+	}
+	return ms
 }
 
 // check runs the adaptive Wilson loop on the shape at x and fills a Result.
