@@ -69,8 +69,16 @@ func reportData(o *Outcome, w *waveform.Waveform, plan *waveform.Plan, a *analys
 	for _, b := range o.Budget {
 		d.Budget = append(d.Budget, report.BudgetRow{Term: b.Term, Infidelity: b.Infidelity, Note: b.Note, Total: b.Total})
 	}
-	// The hardware table holds the hardware limits only; the fidelity and
-	// adiabaticity goals are in the verification summary.
+	d.Checks = hardwareRows(w)
+	robustnessSections(d, a)
+	return d
+}
+
+// hardwareRows returns the hardware table: the hardware limits only (the
+// fidelity and adiabaticity goals are in the verification summary), with
+// margins relative to the limit and slew rates in MHz/µs.
+func hardwareRows(w *waveform.Waveform) []report.CheckRow {
+	var rows []report.CheckRow
 	for _, c := range w.HardwareChecks() {
 		m := c.Margin
 		if c.Limit != 0 {
@@ -80,8 +88,14 @@ func reportData(o *Outcome, w *waveform.Waveform, plan *waveform.Plan, a *analys
 		if c.Unit == "Hz/s" { // slew rates read best in MHz/µs
 			row.Value, row.Limit, row.Unit = c.Value/1e12, c.Limit/1e12, "MHz/µs"
 		}
-		d.Checks = append(d.Checks, row)
+		rows = append(rows, row)
 	}
+	return rows
+}
+
+// robustnessSections fills the advantage table, the robustness curves and
+// the map of d from the analysis.
+func robustnessSections(d *report.Data, a *analysis) {
 	if cmp := a.compare; cmp != nil {
 		d.DynamicalGate = cmp.Dynamical.String()
 		for i, r := range cmp.Rows {
@@ -113,7 +127,6 @@ func reportData(o *Outcome, w *waveform.Waveform, plan *waveform.Plan, a *analys
 			Geometric: m.Fidelity,
 		}
 	}
-	return d
 }
 
 func schemeWords(sc *holonomy.Scheme) string {
