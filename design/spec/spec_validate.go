@@ -164,6 +164,23 @@ func (s *Spec) checkScheme(c *checker) bool {
 		c.bad("scheme.channels", "%d channels; a scheme has 1 to %d", len(sc.Channels), MaxChannels)
 		return false
 	}
+	s.checkChannels(c)
+	s.checkQubit(c)
+	if len(c.probs) == n0 {
+		// The engine's own structural check; the checks above are meant to
+		// cover it with better messages, so this is a safety net.
+		if err := sc.Validate(); err != nil {
+			c.bad("scheme", "%v", err)
+		}
+	}
+	return len(c.probs) == n0
+}
+
+// checkChannels checks names, levels, transitions and factors of the
+// scheme's channels.
+func (s *Spec) checkChannels(c *checker) {
+	sc := s.Scheme
+	n := len(sc.Levels)
 	seenC := map[string]int{}
 	pairs := map[[2]int]int{}
 	for i, ch := range sc.Channels {
@@ -197,6 +214,13 @@ func (s *Spec) checkScheme(c *checker) bool {
 			c.bad(p+".factor", "the matrix-element factor must be finite and non-zero; found %v", ch.Factor)
 		}
 	}
+}
+
+// checkQubit checks that the qubit is two different levels of the scheme,
+// each coupled by a channel.
+func (s *Spec) checkQubit(c *checker) {
+	sc := s.Scheme
+	n := len(sc.Levels)
 	q := sc.Computational
 	switch {
 	case len(q) != 2:
@@ -218,14 +242,6 @@ func (s *Spec) checkScheme(c *checker) bool {
 			}
 		}
 	}
-	if len(c.probs) == n0 {
-		// The engine's own structural check; the checks above are meant to
-		// cover it with better messages, so this is a safety net.
-		if err := sc.Validate(); err != nil {
-			c.bad("scheme", "%v", err)
-		}
-	}
-	return len(c.probs) == n0
 }
 
 // checkWorkingSubspace checks that the scheme offers the method a working
