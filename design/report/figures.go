@@ -150,41 +150,10 @@ func waveformFigure(ws []Waveform) (figure, error) {
 		amps = append(amps, maxAbs(wf.Amplitude), wf.MaxRabi)
 	}
 	af, au := unitScale("Hz", maxAbs(amps))
-	pa, pp := newPlot(), newPlot()
-	pa.Title.Text = "Rabi frequency Ω/2π"
-	pp.Title.Text = "Phase φ"
-	pa.Y.Label.Text = axisLabel("Ω/2π", au)
-	pp.Y.Label.Text = "φ (rad)"
-	pp.X.Label.Text = axisLabel("time", tu)
-	pa.X.Tick.Marker, pp.X.Tick.Marker = niceTicks{8}, niceTicks{8}
-	pa.Y.Tick.Marker = niceTicks{5}
-	pp.Y.Tick.Marker = piTicks{}
-	pa.Add(grid{vertical: true, horizontal: true})
-	pp.Add(grid{vertical: true, horizontal: true})
+	pa, pp := waveformPlots(au, tu)
 	key := newLegend()
-	// Limits: one shared line if all channels share it, else one per channel.
-	shared := true
-	var lim0 float64
-	nlim := 0
-	for _, wf := range ws {
-		if wf.MaxRabi > 0 {
-			if nlim > 0 && math.Abs(wf.MaxRabi-lim0) > 1e-12*lim0 {
-				shared = false
-			}
-			lim0 = wf.MaxRabi
-			nlim++
-		}
-	}
-	if nlim < len(ws) {
-		shared = false
-	}
-	var t0, t1 float64 = math.Inf(1), math.Inf(-1)
-	for _, wf := range ws {
-		if len(wf.Time) > 0 {
-			t0 = math.Min(t0, wf.Time[0]*tf)
-			t1 = math.Max(t1, wf.Time[len(wf.Time)-1]*tf)
-		}
-	}
+	shared, lim0, nlim := sharedLimit(ws)
+	t0, t1 := timeSpan(ws, tf)
 	var ymax float64
 	for i, wf := range ws {
 		st := styleOf(i)
@@ -237,17 +206,7 @@ func waveformFigure(ws []Waveform) (figure, error) {
 	pa.Y.Min, pa.Y.Max = 0, ymax*1.08
 	pa.X.Min, pa.X.Max = t0, t1
 	pp.X.Min, pp.X.Max = t0, t1
-	lo, hi := math.Inf(1), math.Inf(-1)
-	for _, wf := range ws {
-		for _, x := range wf.Phase {
-			lo, hi = math.Min(lo, x), math.Max(hi, x)
-		}
-	}
-	if !(hi > lo) {
-		lo, hi = lo-math.Pi/2, hi+math.Pi/2
-	}
-	pad := 0.06 * (hi - lo)
-	pp.Y.Min, pp.Y.Max = lo-pad, hi+pad
+	pp.Y.Min, pp.Y.Max = phaseRange(ws)
 	svg, err := renderGrid(w, h, "Waveforms per channel: Rabi frequency and phase against time", []*plot.Plot{pa, pp}, 2, 1, key)
 	if err != nil {
 		return figure{}, err
@@ -259,6 +218,72 @@ func waveformFigure(ws []Waveform) (figure, error) {
 		caption += " No hardware limits were given."
 	}
 	return figure{svg: svg, caption: caption, w: w, h: h}, nil
+}
+
+// waveformPlots returns the amplitude and phase panels of the waveform
+// figure, with amplitude unit au and time unit tu.
+func waveformPlots(au, tu string) (pa, pp *plot.Plot) {
+	pa, pp = newPlot(), newPlot()
+	pa.Title.Text = "Rabi frequency Ω/2π"
+	pp.Title.Text = "Phase φ"
+	pa.Y.Label.Text = axisLabel("Ω/2π", au)
+	pp.Y.Label.Text = "φ (rad)"
+	pp.X.Label.Text = axisLabel("time", tu)
+	pa.X.Tick.Marker, pp.X.Tick.Marker = niceTicks{8}, niceTicks{8}
+	pa.Y.Tick.Marker = niceTicks{5}
+	pp.Y.Tick.Marker = piTicks{}
+	pa.Add(grid{vertical: true, horizontal: true})
+	pp.Add(grid{vertical: true, horizontal: true})
+	return pa, pp
+}
+
+// sharedLimit reports whether every channel has the same Rabi limit
+// (drawn as one line, else one per channel), that limit and how many
+// channels have one.
+func sharedLimit(ws []Waveform) (shared bool, lim0 float64, nlim int) {
+	shared = true
+	for _, wf := range ws {
+		if wf.MaxRabi > 0 {
+			if nlim > 0 && math.Abs(wf.MaxRabi-lim0) > 1e-12*lim0 {
+				shared = false
+			}
+			lim0 = wf.MaxRabi
+			nlim++
+		}
+	}
+	if nlim < len(ws) {
+		shared = false
+	}
+	return shared, lim0, nlim
+}
+
+// timeSpan returns the first and last sample time of all waveforms,
+// scaled by tf.
+func timeSpan(ws []Waveform, tf float64) (t0, t1 float64) {
+	t0, t1 = math.Inf(1), math.Inf(-1)
+	for _, wf := range ws {
+		if len(wf.Time) > 0 {
+			t0 = math.Min(t0, wf.Time[0]*tf)
+			t1 = math.Max(t1, wf.Time[len(wf.Time)-1]*tf)
+		}
+	}
+	return t0, t1
+}
+
+// phaseRange returns the phase axis range: the phases' span padded by 6 %
+// (±π/2 around a constant phase).
+func phaseRange(ws []Waveform) (lo, hi float64) {
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for _, wf := range ws {
+		for _, x := range wf.Phase {
+			lo, hi = math.Min(lo, x), math.Max(hi, x)
+		}
+	}
+	if !(hi > lo) {
+		lo, hi = lo-math.Pi/2, hi+math.Pi/2
+	}
+	pad := 0.06 * (hi - lo)
+	return lo - pad, hi + pad
 }
 
 func timesOf(ws []Waveform) [][]float64 {
