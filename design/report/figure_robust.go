@@ -151,32 +151,7 @@ func mapFigure(m *Map) (figure, error) {
 	p.Add(hm)
 	key := newLegend()
 	addContour := func(g [][]float64, dash []vg.Length, name string) error {
-		var first *plotter.Line
-		for _, cl := range contourLines(xs, ys, g, Threshold) {
-			cx, cy := make([]float64, len(cl)), make([]float64, len(cl))
-			for k, pt := range cl {
-				cx[k], cy[k] = pt[0], pt[1]
-			}
-			under, err := line(cx, cy, seriesStyle{color: colorWhite, dash: dash}, 3.4)
-			if err != nil {
-				return err
-			}
-			over, err := line(cx, cy, seriesStyle{color: colInk, dash: dash}, 1.5)
-			if err != nil {
-				return err
-			}
-			p.Add(under, over)
-			if first == nil {
-				first = over
-			}
-		}
-		if first == nil {
-			ln, _ := line([]float64{0, 1}, []float64{0, 0}, seriesStyle{color: colInk, dash: dash}, 1.5)
-			key.Add(name+" (none in range)", ln)
-			return nil
-		}
-		key.Add(name, first)
-		return nil
+		return drawContour(p, &key, xs, ys, g, dash, name)
 	}
 	if err := addContour(m.Geometric, nil, fmt.Sprintf("geometric F = %g", Threshold)); err != nil {
 		return figure{}, err
@@ -186,25 +161,10 @@ func mapFigure(m *Map) (figure, error) {
 			return figure{}, err
 		}
 	}
-	cb := newPlot()
-	cb.HideX()
-	cb.X.Padding = 0
-	cb.Y.Padding = 0
-	cb.Y.Label.Text = "infidelity 1 − F"
-	cb.Y.Tick.Marker = decadeTicks{}
-	cb.Add(&plotter.ColorBar{ColorMap: cm, Vertical: true, Colors: 256})
-	// Mark the threshold on the colour bar.
-	th := math.Log10(1 - Threshold)
-	under, err := line([]float64{0, 1}, []float64{th, th}, seriesStyle{color: colorWhite}, 3.4)
+	cb, err := colourBar(cm)
 	if err != nil {
 		return figure{}, err
 	}
-	over, err := line([]float64{0, 1}, []float64{th, th}, seriesStyle{color: colInk}, 1.5)
-	if err != nil {
-		return figure{}, err
-	}
-	cb.Add(under, over)
-	cb.X.Min, cb.X.Max = 0, 1
 	svg, err := renderSVG(w, h, "Robustness map: infidelity over two errors with the fidelity threshold contours", func(dc draw.Canvas) error {
 		area, kc := panels(dc)
 		const barW = 70.0
@@ -230,4 +190,61 @@ func mapFigure(m *Map) (figure, error) {
 	}
 	caption += "."
 	return figure{svg: svg, caption: caption, w: w, h: h}, nil
+}
+
+// drawContour draws the Threshold contour of the grid g on p, white under
+// ink so that it shows on any colour, and adds it to key as name ("none in
+// range" when the grid never crosses the threshold).
+func drawContour(p *plot.Plot, key *plot.Legend, xs, ys []float64, g [][]float64, dash []vg.Length, name string) error {
+	var first *plotter.Line
+	for _, cl := range contourLines(xs, ys, g, Threshold) {
+		cx, cy := make([]float64, len(cl)), make([]float64, len(cl))
+		for k, pt := range cl {
+			cx[k], cy[k] = pt[0], pt[1]
+		}
+		under, err := line(cx, cy, seriesStyle{color: colorWhite, dash: dash}, 3.4)
+		if err != nil {
+			return err
+		}
+		over, err := line(cx, cy, seriesStyle{color: colInk, dash: dash}, 1.5)
+		if err != nil {
+			return err
+		}
+		p.Add(under, over)
+		if first == nil {
+			first = over
+		}
+	}
+	if first == nil {
+		ln, _ := line([]float64{0, 1}, []float64{0, 0}, seriesStyle{color: colInk, dash: dash}, 1.5)
+		key.Add(name+" (none in range)", ln)
+		return nil
+	}
+	key.Add(name, first)
+	return nil
+}
+
+// colourBar returns the vertical colour bar of the map with the threshold
+// marked on it.
+func colourBar(cm *mapColors) (*plot.Plot, error) {
+	cb := newPlot()
+	cb.HideX()
+	cb.X.Padding = 0
+	cb.Y.Padding = 0
+	cb.Y.Label.Text = "infidelity 1 − F"
+	cb.Y.Tick.Marker = decadeTicks{}
+	cb.Add(&plotter.ColorBar{ColorMap: cm, Vertical: true, Colors: 256})
+	// Mark the threshold on the colour bar.
+	th := math.Log10(1 - Threshold)
+	under, err := line([]float64{0, 1}, []float64{th, th}, seriesStyle{color: colorWhite}, 3.4)
+	if err != nil {
+		return nil, err
+	}
+	over, err := line([]float64{0, 1}, []float64{th, th}, seriesStyle{color: colInk}, 1.5)
+	if err != nil {
+		return nil, err
+	}
+	cb.Add(under, over)
+	cb.X.Min, cb.X.Max = 0, 1
+	return cb, nil
 }
