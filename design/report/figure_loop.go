@@ -81,104 +81,30 @@ func loopFigure(l *Loop) (figure, error) {
 	back := seriesStyle{color: colGeo, dash: []vg.Length{vg.Points(2), vg.Points(2.5)}}
 	var ps []*plot.Plot
 	for pi, pr := range proj {
-		p := newPlot()
-		p.Title.Text = fmt.Sprintf("%s projection: %s – %s plane", []string{"A", "B"}[pi], axes[pr[0]], axes[pr[1]])
-		p.Title.TextStyle.Font = sans(9.5)
-		p.X.Label.Text, p.Y.Label.Text = axes[pr[0]], axes[pr[1]]
-		p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = -1.12, 1.12, -1.12, 1.12
-		p.X.Padding, p.Y.Padding = 0, 0
-		ticks := plot.ConstantTicks{{Value: -1, Label: "−1"}, {Value: -0.5}, {Value: 0, Label: "0"}, {Value: 0.5}, {Value: 1, Label: "1"}}
-		p.X.Tick.Marker, p.Y.Tick.Marker = ticks, ticks
-		// Sphere outline and cross hairs.
-		circle := make([]float64, 0, 2*181)
-		for i := 0; i <= 180; i++ {
-			s, c := math.Sincos(2 * math.Pi * float64(i) / 180)
-			circle = append(circle, c, s)
-		}
-		cx, cy := make([]float64, 181), make([]float64, 181)
-		for i := range cx {
-			cx[i], cy[i] = circle[2*i], circle[2*i+1]
-		}
-		outline, err := line(cx, cy, seriesStyle{color: colMuted}, 0.8)
+		p, err := spherePanel(pi, pr, axes)
 		if err != nil {
 			return figure{}, err
 		}
-		hx, err := line([]float64{-1, 1}, []float64{0, 0}, seriesStyle{color: colFaint}, 0.6)
+		hidden, err := drawLoopRuns(p, v, ok, pr, front, back)
 		if err != nil {
 			return figure{}, err
 		}
-		hy, err := line([]float64{0, 0}, []float64{-1, 1}, seriesStyle{color: colFaint}, 0.6)
-		if err != nil {
-			return figure{}, err
-		}
-		p.Add(hx, hy, outline)
-		// The loop, split into runs on the near (front) and far side.
-		var xs, ys []float64
-		hidden := false
-		flush := func() error {
-			if len(xs) >= 2 {
-				st := front
-				if hidden {
-					st = back
-					hiddenAny = true
-				}
-				ln, err := line(xs, ys, st, 1.6)
-				if err != nil {
-					return err
-				}
-				p.Add(ln)
-			}
-			return nil
-		}
-		for k := range v {
-			if !ok[k] {
-				if err := flush(); err != nil {
-					return figure{}, err
-				}
-				xs, ys = nil, nil
-				continue
-			}
-			hk := v[k][pr[2]] < -1e-9
-			if hk != hidden && len(xs) > 0 {
-				// Start the new run at the last point so the curve is
-				// continuous.
-				lx, ly := xs[len(xs)-1], ys[len(ys)-1]
-				if err := flush(); err != nil {
-					return figure{}, err
-				}
-				xs, ys = []float64{lx}, []float64{ly}
-			}
-			hidden = hk
-			xs = append(xs, v[k][pr[0]])
-			ys = append(ys, v[k][pr[1]])
-		}
-		if err := flush(); err != nil {
-			return figure{}, err
-		}
+		hiddenAny = hiddenAny || hidden
 		// Direction arrows and the base point.
 		for _, frac := range []float64{0.18, 0.52, 0.82} {
 			if a := arrowhead(v, ok, pr, frac); a != nil {
 				p.Add(a)
 			}
 		}
-		for k := range v {
-			if ok[k] {
-				s, err := plotter.NewScatter(plotter.XYs{{X: v[k][pr[0]], Y: v[k][pr[1]]}})
-				if err != nil {
-					return figure{}, err
-				}
-				s.GlyphStyle = draw.GlyphStyle{Color: colInk, Radius: vg.Points(4), Shape: draw.CircleGlyph{}}
-				ring, _ := plotter.NewScatter(plotter.XYs{{X: v[k][pr[0]], Y: v[k][pr[1]]}})
-				ring.GlyphStyle = draw.GlyphStyle{Color: colorWhite, Radius: vg.Points(5.5), Shape: draw.CircleGlyph{}}
-				p.Add(ring, s)
-				if pi == 0 {
-					fl, _ := line([]float64{0, 1}, []float64{0, 0}, front, 1.6)
-					key.Add("loop", fl)
-					key.Add("start (s = 0)", s)
-					key.Add("direction of travel", arrowThumb{})
-				}
-				break
-			}
+		s, err := drawBasePoint(p, v, ok, pr)
+		if err != nil {
+			return figure{}, err
+		}
+		if s != nil && pi == 0 {
+			fl, _ := line([]float64{0, 1}, []float64{0, 0}, front, 1.6)
+			key.Add("loop", fl)
+			key.Add("start (s = 0)", s)
+			key.Add("direction of travel", arrowThumb{})
 		}
 		ps = append(ps, p)
 	}
@@ -210,6 +136,112 @@ func loopFigure(l *Loop) (figure, error) {
 		caption += " Dashed parts lie on the far side of the sphere (dropped coordinate negative)."
 	}
 	return figure{svg: svg, caption: caption, w: w, h: h}, nil
+}
+
+// spherePanel returns projection panel pi (axes pr[0], pr[1]) with the
+// unit circle and cross hairs drawn.
+func spherePanel(pi int, pr [3]int, axes [3]string) (*plot.Plot, error) {
+	p := newPlot()
+	p.Title.Text = fmt.Sprintf("%s projection: %s – %s plane", []string{"A", "B"}[pi], axes[pr[0]], axes[pr[1]])
+	p.Title.TextStyle.Font = sans(9.5)
+	p.X.Label.Text, p.Y.Label.Text = axes[pr[0]], axes[pr[1]]
+	p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = -1.12, 1.12, -1.12, 1.12
+	p.X.Padding, p.Y.Padding = 0, 0
+	ticks := plot.ConstantTicks{{Value: -1, Label: "−1"}, {Value: -0.5}, {Value: 0, Label: "0"}, {Value: 0.5}, {Value: 1, Label: "1"}}
+	p.X.Tick.Marker, p.Y.Tick.Marker = ticks, ticks
+	// Sphere outline and cross hairs.
+	circle := make([]float64, 0, 2*181)
+	for i := 0; i <= 180; i++ {
+		s, c := math.Sincos(2 * math.Pi * float64(i) / 180)
+		circle = append(circle, c, s)
+	}
+	cx, cy := make([]float64, 181), make([]float64, 181)
+	for i := range cx {
+		cx[i], cy[i] = circle[2*i], circle[2*i+1]
+	}
+	outline, err := line(cx, cy, seriesStyle{color: colMuted}, 0.8)
+	if err != nil {
+		return nil, err
+	}
+	hx, err := line([]float64{-1, 1}, []float64{0, 0}, seriesStyle{color: colFaint}, 0.6)
+	if err != nil {
+		return nil, err
+	}
+	hy, err := line([]float64{0, 0}, []float64{-1, 1}, seriesStyle{color: colFaint}, 0.6)
+	if err != nil {
+		return nil, err
+	}
+	p.Add(hx, hy, outline)
+	return p, nil
+}
+
+// drawLoopRuns draws the loop on p, split into runs on the near side
+// (front) and far side (back) of the dropped axis pr[2], and reports
+// whether any part is on the far side.
+func drawLoopRuns(p *plot.Plot, v [][3]float64, ok []bool, pr [3]int, front, back seriesStyle) (hiddenAny bool, err error) {
+	// The loop, split into runs on the near (front) and far side.
+	var xs, ys []float64
+	hidden := false
+	flush := func() error {
+		if len(xs) >= 2 {
+			st := front
+			if hidden {
+				st = back
+				hiddenAny = true
+			}
+			ln, err := line(xs, ys, st, 1.6)
+			if err != nil {
+				return err
+			}
+			p.Add(ln)
+		}
+		return nil
+	}
+	for k := range v {
+		if !ok[k] {
+			if err := flush(); err != nil {
+				return false, err
+			}
+			xs, ys = nil, nil
+			continue
+		}
+		hk := v[k][pr[2]] < -1e-9
+		if hk != hidden && len(xs) > 0 {
+			// Start the new run at the last point so the curve is
+			// continuous.
+			lx, ly := xs[len(xs)-1], ys[len(ys)-1]
+			if err := flush(); err != nil {
+				return false, err
+			}
+			xs, ys = []float64{lx}, []float64{ly}
+		}
+		hidden = hk
+		xs = append(xs, v[k][pr[0]])
+		ys = append(ys, v[k][pr[1]])
+	}
+	if err := flush(); err != nil {
+		return false, err
+	}
+	return hiddenAny, nil
+}
+
+// drawBasePoint marks the first valid sample of the loop on p and returns
+// its marker (nil if there is none).
+func drawBasePoint(p *plot.Plot, v [][3]float64, ok []bool, pr [3]int) (*plotter.Scatter, error) {
+	for k := range v {
+		if ok[k] {
+			s, err := plotter.NewScatter(plotter.XYs{{X: v[k][pr[0]], Y: v[k][pr[1]]}})
+			if err != nil {
+				return nil, err
+			}
+			s.GlyphStyle = draw.GlyphStyle{Color: colInk, Radius: vg.Points(4), Shape: draw.CircleGlyph{}}
+			ring, _ := plotter.NewScatter(plotter.XYs{{X: v[k][pr[0]], Y: v[k][pr[1]]}})
+			ring.GlyphStyle = draw.GlyphStyle{Color: colorWhite, Radius: vg.Points(5.5), Shape: draw.CircleGlyph{}}
+			p.Add(ring, s)
+			return s, nil
+		}
+	}
+	return nil, nil
 }
 
 var colorWhite = rgb(0xff, 0xff, 0xff)
