@@ -180,7 +180,14 @@ func TestWriteFullReport(t *testing.T) {
 	if strings.Count(hw, "pass") != 3 || strings.Count(hw, "FAIL") != 1 {
 		t.Errorf("hardware table words: %q", hw)
 	}
-	// Cautions: the required topics, always present.
+	checkCautions(t, root, d)
+}
+
+// checkCautions checks the cautions section (the required topics and the
+// data's extra caution), the synthetic-data notice and that the page has
+// no scripts.
+func checkCautions(t *testing.T, root *element, d *Data) {
+	t.Helper()
 	ct := root.byID("sec-cautions").allText()
 	for _, w := range []string{"calibration", "damage", "Laser safety", "safety rules", "licensed practice"} {
 		if !strings.Contains(ct, w) {

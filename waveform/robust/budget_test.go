@@ -87,11 +87,13 @@ func TestBudgetLines(t *testing.T) {
 	if !strings.Contains(rows[len(rows)-1].Note, "sum of the separate lines") {
 		t.Errorf("total note %q", rows[len(rows)-1].Note)
 	}
+}
 
-	// A model without errors: ideal, leakage and total only, and an
-	// adiabatic waveform names the first line non-adiabaticity.
+// A model without errors gives the ideal, leakage and total lines only,
+// and an adiabatic waveform names the first line non-adiabaticity.
+func TestBudgetWithoutErrors(t *testing.T) {
 	tw := wavetest.RobustTripod(t, math.Pi/4, 0.05, 20e6)
-	rows, err = Budget(context.Background(), tw, sim.ErrorModel{SkipDAC: true}, nil)
+	rows, err := Budget(context.Background(), tw, sim.ErrorModel{SkipDAC: true}, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
