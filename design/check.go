@@ -4,13 +4,12 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"github.com/loopgate/loopgate/design/spec"
-	"github.com/loopgate/loopgate/waveform/wavefile"
 	"math"
-	"math/cmplx"
 
+	"github.com/loopgate/loopgate/design/spec"
 	"github.com/loopgate/loopgate/holonomy"
 	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/wavefile"
 )
 
 // CheckOptions controls CheckLoopFile.
@@ -98,22 +97,7 @@ func CheckLoopFile(ctx context.Context, path string, opt CheckOptions) (*LoopChe
 		}
 		target, label = g.Matrix(), g.Symbol
 	}
-	detuned := false
-	for _, l := range lf.Scheme.Levels {
-		detuned = detuned || l.Detuning != 0
-	}
-	var note string
-	if opt.Rabi > 0 {
-		lf.Scheme = unitScheme(lf.Scheme, opt.Rabi)
-	} else {
-		lf.Scheme = unitScheme(lf.Scheme, 0)
-		for k := range lf.Scheme.Levels {
-			lf.Scheme.Levels[k].Detuning = 0
-		}
-		if detuned {
-			note = "the scheme's static detunings were left out: give the peak Rabi frequency (--rabi) to include them relative to it"
-		}
-	}
+	note := scaleLoopScheme(lf, opt.Rabi)
 	sc := lf.Scheme
 	n, d := sc.Dim(), len(sc.Computational)
 	if target.R != d {
@@ -123,35 +107,13 @@ func CheckLoopFile(ctx context.Context, path string, opt CheckOptions) (*LoopChe
 	tmp := holonomy.NewMat(n, n)
 	seg := holonomy.NewMat(n, n)
 	out := &LoopCheck{Source: path, Scheme: sc.Name, Target: label, MinFidelity: waveform.DefaultMinFidelity}
-	for i, s := range lf.Segments {
+	for i := range lf.Segments {
 		if err := ctx.Err(); err != nil {
 			return nil, err
 		}
-		segc := SegmentCheck{Kind: s.Kind.String()}
-		loop := lf.Shape(i)
-		switch s.Kind {
-		case waveform.Cyclic:
-			segc.Area = s.Area
-			cyclicPropagator(lf.Scheme, loop, s.Area, seg)
-		default:
-			res, err := holonomy.NewWilson(lf.Scheme).Adaptive(loop, holonomy.AdaptiveOptions{Points: 4 * len(s.S), Tol: checkTol, Extrapolate: true})
-			if err != nil {
-				var ge *holonomy.GapError
-				if errors.As(err, &ge) {
-					return nil, &InfeasibleError{Err: fmt.Errorf("loop file %s: segment %d: %w", path, i, err)}
-				}
-				return nil, fmt.Errorf("loop file %s: segment %d: %w", path, i, err)
-			}
-			segc.Points, segc.ErrorEstimate = res.Points, res.ErrorEstimate
-			segc.MinGap, segc.MinGapAt = res.Gap.Min, res.Gap.At
-			for _, f := range res.Findings {
-				segc.Findings = append(segc.Findings, f.Message)
-			}
-			segc.AdiabaticityProduct, err = adiabaticityProduct(lf.Scheme, loop, 4*len(s.S))
-			if err != nil {
-				return nil, fmt.Errorf("loop file %s: segment %d: %w", path, i, err)
-			}
-			embedBlock(seg, res.U, lf.Scheme.Computational)
+		segc, err := checkSegment(lf, i, seg)
+		if err != nil {
+			return nil, fmt.Errorf("loop file %s: segment %d: %w", path, i, err)
 		}
 		holonomy.Mul(tmp, seg, total)
 		total.Copy(tmp)
@@ -162,18 +124,80 @@ func CheckLoopFile(ctx context.Context, path string, opt CheckOptions) (*LoopChe
 	}
 	out.Fidelity, out.Leakage = holonomy.GateFidelity(total, sc.Computational, target)
 	out.Pass = out.Fidelity >= out.MinFidelity
-	for _, a := range sc.Computational {
-		var row [][2]float64
-		for _, b := range sc.Computational {
-			v := total.At(a, b)
-			row = append(row, [2]float64{real(v), imag(v)})
-		}
-		out.Gate = append(out.Gate, row)
-	}
+	out.Gate = gateBlock(total, sc.Computational)
 	if !out.Pass {
 		return out, &ChecksFailedError{Failed: []string{fmt.Sprintf("fidelity %.6f < %.6f", out.Fidelity, out.MinFidelity)}}
 	}
 	return out, nil
+}
+
+// scaleLoopScheme puts the scheme of lf at unit scale: static detunings
+// relative to the peak Rabi frequency rabi (Hz), or left out without it,
+// in which case the returned note says so.
+func scaleLoopScheme(lf *wavefile.LoopFile, rabi float64) string {
+	detuned := false
+	for _, l := range lf.Scheme.Levels {
+		detuned = detuned || l.Detuning != 0
+	}
+	if rabi > 0 {
+		lf.Scheme = unitScheme(lf.Scheme, rabi)
+		return ""
+	}
+	lf.Scheme = unitScheme(lf.Scheme, 0)
+	for k := range lf.Scheme.Levels {
+		lf.Scheme.Levels[k].Detuning = 0
+	}
+	if detuned {
+		return "the scheme's static detunings were left out: give the peak Rabi frequency (--rabi) to include them relative to it"
+	}
+	return ""
+}
+
+// checkSegment writes the propagator of segment i of lf into seg (the
+// pulse's for a cyclic segment, the embedded holonomy for an adiabatic
+// one) and returns its figures. A closing gap is an *InfeasibleError.
+func checkSegment(lf *wavefile.LoopFile, i int, seg *holonomy.Mat) (SegmentCheck, error) {
+	s := lf.Segments[i]
+	segc := SegmentCheck{Kind: s.Kind.String()}
+	loop := lf.Shape(i)
+	if s.Kind == waveform.CyclicSegment {
+		segc.Area = s.Area
+		cyclicPropagator(lf.Scheme, loop, s.Area, seg)
+		return segc, nil
+	}
+	res, err := holonomy.NewWilson(lf.Scheme).Adaptive(loop, holonomy.AdaptiveOptions{Points: 4 * len(s.S), Tol: checkTol, Extrapolate: true})
+	if err != nil {
+		var ge *holonomy.GapError
+		if errors.As(err, &ge) {
+			return segc, &InfeasibleError{Err: err}
+		}
+		return segc, err
+	}
+	segc.Points, segc.ErrorEstimate = res.Points, res.ErrorEstimate
+	segc.MinGap, segc.MinGapAt = res.Gap.Min, res.Gap.At
+	for _, f := range res.Findings {
+		segc.Findings = append(segc.Findings, f.Message)
+	}
+	segc.AdiabaticityProduct, err = adiabaticityProduct(lf.Scheme, loop, 4*len(s.S))
+	if err != nil {
+		return segc, err
+	}
+	embedBlock(seg, res.U, lf.Scheme.Computational)
+	return segc, nil
+}
+
+// gateBlock returns the computational block of u as rows of (re, im).
+func gateBlock(u *holonomy.Mat, comp []int) [][][2]float64 {
+	var gate [][][2]float64
+	for _, a := range comp {
+		var row [][2]float64
+		for _, b := range comp {
+			v := u.At(a, b)
+			row = append(row, [2]float64{real(v), imag(v)})
+		}
+		gate = append(gate, row)
+	}
+	return gate
 }
 
 // cyclicPropagator writes exp(−i H·area) into dst for the unit-scale
@@ -199,16 +223,14 @@ func embedBlock(dst, u *holonomy.Mat, comp []int) {
 	}
 }
 
-// adiabaticityProduct returns max over the loop of
-// ‖P_W ∂ₛH|n⟩‖/(E_W − E_n)² at unit amplitude, where W is the working
-// subspace (the eigenvectors with most weight on the computational levels
-// at s = 0, tracked by their places in the ascending spectrum) and n runs
-// over the other eigenstates; ∂ₛH is a central difference.
+// adiabaticityProduct returns max over the loop of the adiabaticity ratio
+// ‖P_C ∂ₛH|n⟩‖/(E_C − E_n)² at unit amplitude (holonomy.Spectrum), where
+// the working clusters C are chosen by their weight on the computational
+// levels at s = 0 and tracked by their places in the ascending spectrum,
+// and n runs over the other eigenstates; ∂ₛH is a central difference.
 func adiabaticityProduct(sc *holonomy.Scheme, loop holonomy.Loop, n int) (float64, error) {
 	dim := sc.Dim()
-	eig := holonomy.NewEigen(dim)
-	vals := make([]float64, dim)
-	v := holonomy.NewMat(dim, dim)
+	sp := holonomy.NewSpectrum(sc)
 	h, hp, hm := holonomy.NewMat(dim, dim), holonomy.NewMat(dim, dim), holonomy.NewMat(dim, dim)
 	p := sc.NewPoint()
 	at := func(dst *holonomy.Mat, s float64) {
@@ -219,28 +241,12 @@ func adiabaticityProduct(sc *holonomy.Scheme, loop holonomy.Loop, n int) (float6
 		loop(s, p)
 		sc.Hamiltonian(dst, p)
 	}
-	// Working places: the len(Computational) eigenvectors with the most
-	// computational weight at s = 0.
 	at(h, 0)
-	eig.Factorize(h, vals, v)
-	k := len(sc.Computational)
-	weight := make([]float64, dim)
-	for j := 0; j < dim; j++ {
-		for _, c := range sc.Computational {
-			a := v.At(c, j)
-			weight[j] += real(a)*real(a) + imag(a)*imag(a)
-		}
+	sp.Factorize(h)
+	if err := sp.ChooseWorking(); err != nil {
+		return 0, err
 	}
-	work := make([]bool, dim)
-	for t := 0; t < k; t++ {
-		best := -1
-		for j := 0; j < dim; j++ {
-			if !work[j] && (best < 0 || weight[j] > weight[best]) {
-				best = j
-			}
-		}
-		work[best] = true
-	}
+	work := append([][2]int(nil), sp.Working()...)
 	ds := 1 / float64(n)
 	var kappa float64
 	for i := 0; i < n; i++ {
@@ -248,29 +254,16 @@ func adiabaticityProduct(sc *holonomy.Scheme, loop holonomy.Loop, n int) (float6
 		at(h, s)
 		at(hp, s+ds/2)
 		at(hm, s-ds/2)
-		eig.Factorize(h, vals, v)
-		for m := 0; m < dim; m++ {
-			if !work[m] {
-				continue
-			}
-			for q := 0; q < dim; q++ {
-				if work[q] {
-					continue
-				}
-				gap := vals[m] - vals[q]
-				if math.Abs(gap) < 1e-12 {
-					return 0, fmt.Errorf("the gap closes near s = %.4f", s)
-				}
-				var el complex128
-				for a := 0; a < dim; a++ {
-					for b := 0; b < dim; b++ {
-						dh := (hp.At(a, b) - hm.At(a, b)) / complex(ds, 0)
-						el += cmplx.Conj(v.At(a, m)) * dh * v.At(b, q)
-					}
-				}
-				kappa = math.Max(kappa, cmplx.Abs(el)/(gap*gap))
-			}
+		for k := range hp.Data {
+			hp.Data[k] = (hp.Data[k] - hm.Data[k]) / complex(ds, 0)
 		}
+		sp.Factorize(h)
+		sp.SetWorking(work)
+		k, _ := sp.AdiabaticRatio(hp, 1e-9*(holonomy.FrobeniusNorm(hp)+1e-300))
+		if math.IsInf(k, 1) {
+			return 0, fmt.Errorf("the gap closes near s = %.4f", s)
+		}
+		kappa = math.Max(kappa, k)
 	}
 	return kappa, nil
 }

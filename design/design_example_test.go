@@ -3,10 +3,10 @@ package design_test
 import (
 	"context"
 	"fmt"
-	"github.com/loopgate/loopgate/design/spec"
 	"os"
 
 	"github.com/loopgate/loopgate/design"
+	"github.com/loopgate/loopgate/design/spec"
 )
 
 // ExampleDesign designs the nonadiabatic Λ Hadamard gate of a demo spec

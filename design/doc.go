@@ -1,10 +1,13 @@
-// Package design is loopgate's pipeline: it reads a design spec, searches
-// for a loop in control space whose holonomy is the target gate (package
-// optimize), times and samples the loop for an AWG and verifies the
-// sampled waveform in the full level scheme (package waveform), computes
-// the error budget and robustness analysis, and writes the output files
-// atomically: the waveform file, CSV and NPY exports, the loop file and an
-// HTML report (package design/report).
+// Package design runs loopgate's pipeline from a parsed spec to the output
+// files. Given a spec (package design/spec), Design searches for a loop in
+// control space whose holonomy is the target gate (package optimize),
+// times and samples it for an AWG (package waveform), verifies the sampled
+// waveform in the full level scheme (waveform/sim), computes the error
+// budget and robustness analysis (waveform/robust, waveform/dynamical), and
+// writes the output files atomically: the waveform file, CSV and NPY
+// exports, the loop file (waveform/wavefile) and an HTML report (package
+// design/report). VerifyFile and CheckLoopFile re-run the checks on a
+// waveform file or a loop file.
 //
 // # Conventions
 //
@@ -18,8 +21,8 @@
 //
 // # Errors
 //
-// Functions return errors with context naming the file and the field.
-// ExitCode maps them to the command's exit codes: *InputError (bad input),
+// Functions return errors with context naming the file and the field,
+// classified for the command's exit codes as *InputError (bad input),
 // *InfeasibleError (unreachable target or impossible limits),
 // *OutputError (outputs that exist or cannot be written),
 // *ChecksFailedError (work done, a check failed) and context.Canceled

@@ -2,6 +2,7 @@ package design
 
 import (
 	"context"
+	"errors"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -43,8 +44,9 @@ func TestBadFiles(t *testing.T) {
 			continue
 		}
 		msg := err.Error()
-		if ExitCode(err) != ExitBadInput || !strings.Contains(msg, path) {
-			t.Errorf("%s: exit %d, message %q; want exit %d and the file named", c.file, ExitCode(err), msg, ExitBadInput)
+		var in *InputError
+		if !errors.As(err, &in) || !strings.Contains(msg, path) {
+			t.Errorf("%s: message %q; want an *InputError naming the file", c.file, msg)
 		}
 		for _, w := range c.want {
 			if !strings.Contains(msg, w) {
@@ -58,8 +60,9 @@ func TestBadFiles(t *testing.T) {
 func TestUnwritableOutput(t *testing.T) {
 	spc := loadDemo(t, "demo-lambda-hadamard.yaml")
 	_, err := Design(context.Background(), spc, Options{OutDir: "/proc/loopgate-cannot-write-here", NoSweeps: true})
-	if err == nil || ExitCode(err) != ExitOutput || !strings.Contains(err.Error(), "/proc/loopgate-cannot-write-here") {
-		t.Fatalf("got %v (exit %d); want an output error naming the folder", err, ExitCode(err))
+	var out *OutputError
+	if !errors.As(err, &out) || !strings.Contains(err.Error(), "/proc/loopgate-cannot-write-here") {
+		t.Fatalf("got %v; want an *OutputError naming the folder", err)
 	}
 	t.Log(err)
 }

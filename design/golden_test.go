@@ -6,12 +6,13 @@ import (
 	"encoding/hex"
 	"flag"
 	"fmt"
-	"github.com/loopgate/loopgate/design/spec"
 	"os"
 	"path/filepath"
 	"sort"
 	"strings"
 	"testing"
+
+	"github.com/loopgate/loopgate/design/spec"
 )
 
 var updateGolden = flag.Bool("golden.update", false, "rewrite testdata/golden/sha256.txt from this tree")

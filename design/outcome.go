@@ -3,7 +3,10 @@ package design
 import (
 	"math"
 
+	"github.com/loopgate/loopgate/design/internal/atomicfile"
 	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/sim"
+	"github.com/loopgate/loopgate/waveform/wavefile"
 )
 
 // Outcome is what Design and VerifyFile report: the figures of merit, the
@@ -118,14 +121,13 @@ type Figures struct {
 
 // CheckRow is one check: value, limit, margin and verdict.
 type CheckRow struct {
-	Name   string  `json:"name"`
-	Value  float64 `json:"value"`
-	Limit  float64 `json:"limit"`
-	Margin float64 `json:"margin"`
-	Unit   string  `json:"unit"`
-	Bound  string  `json:"bound"`
-	Pass   bool    `json:"pass"`
+	// Kind says what is checked (not printed: Name says it in words).
+	Kind waveform.CheckKind `json:"-"`
+	wavefile.CheckRecord
 }
+
+// IsFidelity reports whether the row is the fidelity goal.
+func (c CheckRow) IsFidelity() bool { return c.Kind == waveform.FidelityCheck }
 
 // BudgetRow is one line of the error budget.
 type BudgetRow struct {
@@ -174,12 +176,9 @@ func newOutcome(cmd, source, title, target string, w *waveform.Waveform, a *anal
 		Caution:    Caution,
 	}
 	for _, c := range a.ideal.Checks {
-		bound := "max"
-		if c.Lower {
-			bound = "min"
-		}
-		o.Checks = append(o.Checks, CheckRow{Name: c.Name, Value: c.Value, Limit: c.Limit, Margin: c.Margin, Unit: c.Unit, Bound: bound, Pass: c.Pass})
+		o.Checks = append(o.Checks, CheckRow{Kind: c.Kind, CheckRecord: wavefile.NewCheckRecord(c)})
 	}
+
 	for _, b := range a.budget {
 		o.Budget = append(o.Budget, BudgetRow{Term: b.Term, Infidelity: b.Infidelity, Note: b.Note, Total: b.Total})
 	}
@@ -203,7 +202,7 @@ func newOutcome(cmd, source, title, target string, w *waveform.Waveform, a *anal
 	return o
 }
 
-func figures(v *waveform.Verification) Figures {
+func figures(v *sim.Verification) Figures {
 	return Figures{
 		Fidelity:     v.Fidelity,
 		Leakage:      v.Leakage,
@@ -232,4 +231,15 @@ func finitePtr(x float64) *float64 {
 		return nil
 	}
 	return &x
+}
+
+// WriteOutput writes data to path in one step: the path holds either its
+// previous content or all of data, never a part. Without overwrite an
+// existing path is refused (the error wraps fs.ErrExist). Errors are
+// *OutputError.
+func WriteOutput(path string, data []byte, overwrite bool) error {
+	if err := atomicfile.WriteFile(path, data, overwrite); err != nil {
+		return &OutputError{Err: err}
+	}
+	return nil
 }

@@ -1,14 +1,15 @@
 package design
 
 import (
-	"github.com/loopgate/loopgate/design/spec"
 	"io"
 	"math"
 	"path/filepath"
 
 	"github.com/loopgate/loopgate/design/report"
+	"github.com/loopgate/loopgate/design/spec"
 	"github.com/loopgate/loopgate/holonomy"
 	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/sim"
 )
 
 // reportLoopPoints is the number of points per adiabatic segment drawn on
@@ -68,8 +69,16 @@ func reportData(o *Outcome, w *waveform.Waveform, plan *waveform.Plan, a *analys
 	for _, b := range o.Budget {
 		d.Budget = append(d.Budget, report.BudgetRow{Term: b.Term, Infidelity: b.Infidelity, Note: b.Note, Total: b.Total})
 	}
-	// The hardware table holds the hardware limits only; the fidelity and
-	// adiabaticity goals are in the verification summary.
+	d.Checks = hardwareRows(w)
+	robustnessSections(d, a)
+	return d
+}
+
+// hardwareRows returns the hardware table: the hardware limits only (the
+// fidelity and adiabaticity goals are in the verification summary), with
+// margins relative to the limit and slew rates in MHz/µs.
+func hardwareRows(w *waveform.Waveform) []report.CheckRow {
+	var rows []report.CheckRow
 	for _, c := range w.HardwareChecks() {
 		m := c.Margin
 		if c.Limit != 0 {
@@ -79,8 +88,14 @@ func reportData(o *Outcome, w *waveform.Waveform, plan *waveform.Plan, a *analys
 		if c.Unit == "Hz/s" { // slew rates read best in MHz/µs
 			row.Value, row.Limit, row.Unit = c.Value/1e12, c.Limit/1e12, "MHz/µs"
 		}
-		d.Checks = append(d.Checks, row)
+		rows = append(rows, row)
 	}
+	return rows
+}
+
+// robustnessSections fills the advantage table, the robustness curves and
+// the map of d from the analysis.
+func robustnessSections(d *report.Data, a *analysis) {
 	if cmp := a.compare; cmp != nil {
 		d.DynamicalGate = cmp.Dynamical.String()
 		for i, r := range cmp.Rows {
@@ -112,7 +127,6 @@ func reportData(o *Outcome, w *waveform.Waveform, plan *waveform.Plan, a *analys
 			Geometric: m.Fidelity,
 		}
 	}
-	return d
 }
 
 func schemeWords(sc *holonomy.Scheme) string {
@@ -155,11 +169,11 @@ func loopDrawing(plan *waveform.Plan, preset string) *report.Loop {
 	s := float64(sc.Dim()-1) / 2
 	for _, seg := range plan.Segments {
 		n := reportLoopPoints
-		if seg.Kind == waveform.Cyclic {
+		if seg.Kind == waveform.CyclicSegment {
 			n = 1
 		}
 		for j := 0; j <= n; j++ {
-			if seg.Kind == waveform.Cyclic && j == n {
+			if seg.Kind == waveform.CyclicSegment && j == n {
 				break
 			}
 			for k := range p.Detuning {
@@ -196,7 +210,7 @@ func waveformPanels(w *waveform.Waveform) []report.Waveform {
 	return out
 }
 
-func populationPanels(sc *holonomy.Scheme, tr *waveform.Outcome) []report.Populations {
+func populationPanels(sc *holonomy.Scheme, tr *sim.Figures) []report.Populations {
 	if tr == nil || len(tr.Times) == 0 {
 		return nil
 	}

@@ -3,14 +3,16 @@ package design
 import (
 	"context"
 	"fmt"
-	"github.com/loopgate/loopgate/design/spec"
-	"github.com/loopgate/loopgate/waveform/wavefile"
 	"io"
 	"math"
 	"os"
 	"path/filepath"
 
-	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/design/internal/atomicfile"
+	"github.com/loopgate/loopgate/design/spec"
+	"github.com/loopgate/loopgate/waveform/robust"
+	"github.com/loopgate/loopgate/waveform/sim"
+	"github.com/loopgate/loopgate/waveform/wavefile"
 )
 
 // ErrorFlags holds error-model overrides as the user typed them on the
@@ -28,7 +30,7 @@ type ErrorFlags struct {
 }
 
 // apply parses the flags into m.
-func (f ErrorFlags) apply(m *waveform.ErrorModel) error {
+func (f ErrorFlags) apply(m *sim.ErrorModel) error {
 	set := func(flag, text string, dim spec.Dimension, dst *float64) error {
 		if text == "" {
 			return nil
@@ -71,9 +73,9 @@ func (f ErrorFlags) apply(m *waveform.ErrorModel) error {
 	case "none":
 		m.RiseTime = 0
 	case "gaussian":
-		m.Filter = waveform.GaussianFilter
+		m.Filter = sim.GaussianFilter
 	case "first-order":
-		m.Filter = waveform.FirstOrderFilter
+		m.Filter = sim.FirstOrderFilter
 	default:
 		return &InputError{Err: fmt.Errorf("flag --filter: %q; expected none, gaussian or first-order", f.Filter)}
 	}
@@ -102,8 +104,9 @@ type VerifyOptions struct {
 	Overwrite bool
 	// NoSweeps skips the robustness sweeps, map and comparison.
 	NoSweeps bool
-	// Progress, if not nil, receives progress bars.
-	Progress io.Writer
+	// OnProgress, if not nil, receives the progress of the robustness
+	// simulations (see robust.SweepOptions.OnProgress).
+	OnProgress func(Progress)
 }
 
 // VerifyFile reads a waveform file, replays it and re-runs every check.
@@ -120,15 +123,15 @@ func VerifyFile(ctx context.Context, path string, opt VerifyOptions) (*Outcome, 
 		return nil, &InputError{Err: fmt.Errorf("waveform %s: /spec: the spec text does not match /spec_sha256 (the file was edited)", path)}
 	}
 	if opt.Report != "" {
-		if err := PrepareOutputDir(filepath.Dir(opt.Report)); err != nil {
+		if err := atomicfile.PrepareDir(filepath.Dir(opt.Report)); err != nil {
 			return nil, &OutputError{Err: err}
 		}
-		if err := CheckOutputs([]string{opt.Report}, opt.Overwrite); err != nil {
+		if err := atomicfile.CheckPaths([]string{opt.Report}, opt.Overwrite); err != nil {
 			return nil, &OutputError{Err: err}
 		}
 	}
 	w := f.Waveform
-	model := waveform.ErrorModel{}
+	model := sim.ErrorModel{}
 	sp := defaultSweeps()
 	title, target, preset := "", targetLabel(w.Target), ""
 	if f.Spec != "" {
@@ -146,11 +149,11 @@ func VerifyFile(ctx context.Context, path string, opt VerifyOptions) (*Outcome, 
 	if err := checkModels(w, model, sp); err != nil {
 		return nil, &InputError{Err: fmt.Errorf("waveform %s: error model: %w", path, err)}
 	}
-	a, err := analyse(ctx, w, model, sp, !opt.NoSweeps, opt.Progress, nil)
+	a, err := analyse(ctx, w, model, sp, !opt.NoSweeps, opt.OnProgress, nil)
 	if err != nil {
 		return nil, err
 	}
-	again, err := waveform.Verify(w, f.Verification.Model)
+	again, err := sim.Verify(w, f.Verification.Model)
 	if err != nil {
 		return nil, fmt.Errorf("waveform %s: %w", path, err)
 	}
@@ -160,11 +163,11 @@ func VerifyFile(ctx context.Context, path string, opt VerifyOptions) (*Outcome, 
 	o.Reproduced = &same
 	if !same {
 		o.Pass = false
-		o.Checks = append(o.Checks, CheckRow{Name: "reproduces the stored figures", Bound: "equal", Pass: false})
+		o.Checks = append(o.Checks, CheckRow{CheckRecord: wavefile.CheckRecord{Name: "reproduces the stored figures", Bound: "equal", Pass: false}})
 	}
 	if opt.Report != "" {
 		data := reportData(o, w, nil, a, "")
-		if err := WriteAtomic(opt.Report, opt.Overwrite, func(wr io.Writer) error { return writeReport(wr, data) }); err != nil {
+		if err := atomicfile.WriteWith(opt.Report, opt.Overwrite, func(wr io.Writer) error { return writeReport(wr, data) }); err != nil {
 			return nil, &OutputError{Err: err}
 		}
 		o.Files = append(o.Files, opt.Report)
@@ -191,21 +194,21 @@ func readWaveformFile(path string) (*wavefile.File, error) {
 func openInput(path, what string) (*os.File, error) {
 	st, err := os.Stat(path)
 	if err != nil {
-		return nil, &InputError{Err: fmt.Errorf("%s %s: %w", what, path, unwrapPath(err))}
+		return nil, &InputError{Err: fmt.Errorf("%s %s: %w", what, path, atomicfile.UnwrapPath(err))}
 	}
 	if st.IsDir() {
 		return nil, &InputError{Err: fmt.Errorf("%s %s: is a directory; expected a file", what, path)}
 	}
 	r, err := os.Open(path)
 	if err != nil {
-		return nil, &InputError{Err: fmt.Errorf("%s %s: %w", what, path, unwrapPath(err))}
+		return nil, &InputError{Err: fmt.Errorf("%s %s: %w", what, path, atomicfile.UnwrapPath(err))}
 	}
 	return r, nil
 }
 
 // defaultSweeps is used for waveform files without an embedded spec.
 func defaultSweeps() sweepPlan {
-	amp := waveform.Range{Axis: waveform.AmplitudeAxis, Min: -0.1, Max: 0.1, Points: 21}
-	det := waveform.Range{Axis: waveform.TwoPhotonAxis, Min: -1e6, Max: 1e6, Points: 21}
+	amp := robust.Range{Axis: robust.AmplitudeAxis, Min: -0.1, Max: 0.1, Points: 21}
+	det := robust.Range{Axis: robust.TwoPhotonAxis, Min: -1e6, Max: 1e6, Points: 21}
 	return sweepPlan{amplitude: amp, detuning: det, mapX: amp, mapY: det}
 }

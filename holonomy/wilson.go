@@ -333,8 +333,8 @@ type AdaptiveOptions struct {
 	Extrapolate bool
 }
 
-// Result is a converged holonomy.
-type Result struct {
+// AdaptiveHolonomy is a converged holonomy, the result of Wilson.Adaptive.
+type AdaptiveHolonomy struct {
 	// U is the k×k holonomy in the computational basis at the base point.
 	U *Mat
 	// Points is the number of loop points of the final refinement.
@@ -362,7 +362,7 @@ type Result struct {
 // A *SamplingError at some refinement is retried with twice the points.
 // If MaxPoints is reached first, Adaptive returns its finest result together
 // with an error wrapping ErrNotConverged. Other errors are those of Loop.
-func (w *Wilson) Adaptive(loop Loop, opt AdaptiveOptions) (*Result, error) {
+func (w *Wilson) Adaptive(loop Loop, opt AdaptiveOptions) (*AdaptiveHolonomy, error) {
 	if w.err != nil {
 		return nil, w.err
 	}
@@ -411,7 +411,7 @@ func (w *Wilson) Adaptive(loop Loop, opt AdaptiveOptions) (*Result, error) {
 		for i := 0; i < ns; i++ {
 			w.output(u[i].Data, w.st[i].prod)
 		}
-		res := &Result{Points: m, Gap: gap}
+		res := &AdaptiveHolonomy{Points: m, Gap: gap}
 		if opt.Extrapolate {
 			richardson(w.tr.pol, r1, u[0], u[1], tmp)
 			richardson(w.tr.pol, r2, u[1], u[2], tmp)

@@ -413,7 +413,7 @@ func (s *LambdaSearch) defaults() (restarts, maxEvals, robustEvals int, target f
 
 // Run performs the search. It honours ctx between evaluations. When the
 // target is not met it returns the best result found together with an
-// error wrapping ErrNotConverged.
+// error wrapping ErrTargetNotReached.
 func (s *LambdaSearch) Run(ctx context.Context) (*LambdaResult, error) {
 	if s.Scheme == nil {
 		return nil, errors.New("optimize: Λ search: no scheme given")
@@ -473,7 +473,7 @@ func (s *LambdaSearch) Run(ctx context.Context) (*LambdaResult, error) {
 	if !best.success {
 		return res, fmt.Errorf("optimize: Λ search for %s after %d evaluations in %d runs: best infidelity %.3g "+
 			"(penalty %.3g) misses the target %.3g with zero penalty: %w", s.Form, best.evals, best.restarts, best.infid,
-			res.Penalty, target, ErrNotConverged)
+			res.Penalty, target, ErrTargetNotReached)
 	}
 	if len(s.Ensemble) > 0 {
 		rep, x, err := s.robust(ctx, lc, res.Params, robustEvals, pen, target)

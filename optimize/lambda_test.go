@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	"github.com/loopgate/loopgate/holonomy"
+	"github.com/loopgate/loopgate/holonomy/holonomytest"
 )
 
 // Sjöqvist et al., New J. Phys. 14, 103035 (2012): a resonant pulse of
@@ -86,7 +87,7 @@ func TestLambdaClosedForm(t *testing.T) {
 	}
 	rng := rand.New(rand.NewPCG(11, 12))
 	for i := 0; i < 20; i++ {
-		targets["random"+string(rune('a'+i))] = randomUnitary(rng)
+		targets["random"+string(rune('a'+i))] = holonomytest.RandomQubitUnitary(rng)
 	}
 	for name, tg := range targets {
 		for _, form := range []LambdaForm{SingleLoop, TwoLoops} {
@@ -271,19 +272,4 @@ func TestLambdaCouplingErrors(t *testing.T) {
 	if _, err := LambdaClosedForm(holonomy.Identity(3), SingleLoop); err == nil {
 		t.Error("3×3 target: want an error")
 	}
-}
-
-// randomUnitary returns a Haar-random 2×2 unitary (Mezzadri, Notices AMS
-// 54, 592 (2007): QR of a complex Gaussian matrix with phases fixed).
-func randomUnitary(rng *rand.Rand) *holonomy.Mat {
-	g := func() complex128 { return complex(rng.NormFloat64(), rng.NormFloat64()) }
-	a, b, c, d := g(), g(), g(), g()
-	// Gram–Schmidt on the columns (a, c), (b, d).
-	n1 := math.Sqrt(real(a*cmplx.Conj(a) + c*cmplx.Conj(c)))
-	a, c = a/complex(n1, 0), c/complex(n1, 0)
-	p := cmplx.Conj(a)*b + cmplx.Conj(c)*d
-	b, d = b-p*a, d-p*c
-	n2 := math.Sqrt(real(b*cmplx.Conj(b) + d*cmplx.Conj(d)))
-	b, d = b/complex(n2, 0), d/complex(n2, 0)
-	return holonomy.NewMatFrom(2, 2, []complex128{a, b, c, d})
 }

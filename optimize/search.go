@@ -18,10 +18,10 @@ import (
 // that make the same gate.
 const DefaultLengthWeight = 1e-4
 
-// ErrNotConverged is wrapped by the error of a search that ends without
+// ErrTargetNotReached is wrapped by the error of a search that ends without
 // meeting its target infidelity (or with a positive penalty); the best
 // result found comes with it.
-var ErrNotConverged = errors.New("target infidelity not reached")
+var ErrTargetNotReached = errors.New("target infidelity not reached")
 
 // searchMargin is the share of the target infidelity a run aims for, so
 // that the final adaptive check, which differs from the fixed-N value by the
@@ -85,7 +85,7 @@ type Search struct {
 	// search (restarts and refinements together); zero means 20000.
 	MaxEvaluations int
 	// Points is the fixed number N of Wilson-loop points during the
-	// search; zero means Shape.Points().
+	// search; zero means Shape.NumPoints().
 	Points int
 	// LengthWeight is λ per radian of loop length; zero means
 	// DefaultLengthWeight and a negative value switches the term off.
@@ -134,7 +134,7 @@ type Result struct {
 	Penalty float64
 	// Check is the adaptive Wilson loop's result (points, error estimate,
 	// smallest gap, findings).
-	Check *holonomy.Result
+	Check *holonomy.AdaptiveHolonomy
 	// Reach is the set of gates the scheme's loops can make.
 	Reach Reach
 	// Evaluations counts objective evaluations of the nominal search, and
@@ -159,7 +159,7 @@ func (s *Search) config() searchConfig {
 		c.maxEvals = 20000
 	}
 	if c.points <= 0 {
-		c.points = s.Shape.Points()
+		c.points = s.Shape.NumPoints()
 	}
 	if c.robustEvals <= 0 {
 		c.robustEvals = 800
@@ -287,7 +287,7 @@ func (o *objective) robust(x []float64) (total, infid, pen float64) {
 // objective evaluations and returns ctx's error (wrapped) when cancelled.
 // A target out of reach gives an *UnreachableError before any search. When
 // the target is not met the best result found is returned together with an
-// error wrapping ErrNotConverged.
+// error wrapping ErrTargetNotReached.
 func (s *Search) Run(ctx context.Context) (*Result, error) {
 	if err := s.validate(); err != nil {
 		return nil, err
@@ -298,24 +298,8 @@ func (s *Search) Run(ctx context.Context) (*Result, error) {
 		return nil, err
 	}
 	o := newObjective(s, c)
-	dim := s.Shape.NumParams()
-	scale := c.scale
-	ms := &multiStart{
-		dim: dim, restarts: c.restarts, maxEvals: c.maxEvals, target: c.target, goal: searchMargin * c.target,
-		simplex: 0.25 * scale, patience: 30 * dim, progress: 1e-3,
-		rng: rand.New(rand.NewPCG(s.Seed, 0x6c6f6f70)),
-		draw: func(rng *rand.Rand, x []float64) {
-			for i := range x {
-				x[i] = (2*rng.Float64() - 1) * scale
-			}
-		},
-		eval:       o.nominal,
-		needTarget: true,
-	}
-	if s.Start != nil {
-		ms.starts = [][]float64{s.Start}
-	}
-	best, err := ms.run(ctx)
+	dim, scale := s.Shape.NumParams(), c.scale
+	best, err := s.newMultiStart(o, c).run(ctx)
 	if err != nil {
 		return nil, err
 	}
@@ -350,7 +334,7 @@ func (s *Search) Run(ctx context.Context) (*Result, error) {
 	if !best.success || res.Infidelity > c.target || res.Penalty > 0 {
 		return res, fmt.Errorf("optimize: search on %q with %d parameters after %d evaluations in %d runs: "+
 			"best infidelity %.3g (checked %.3g, penalty %.3g) misses the target %.3g with zero penalty: %w",
-			s.Scheme.Name, dim, evals, restarts, searchInf, res.Infidelity, res.Penalty, c.target, ErrNotConverged)
+			s.Scheme.Name, dim, evals, restarts, searchInf, res.Infidelity, res.Penalty, c.target, ErrTargetNotReached)
 	}
 	if len(s.Ensemble) > 0 {
 		rep, xr, err := s.robust(ctx, o, x, c)
@@ -368,6 +352,29 @@ func (s *Search) Run(ctx context.Context) (*Result, error) {
 		res.Robust = rep
 	}
 	return res, nil
+}
+
+// newMultiStart returns the seeded multi-start Nelder–Mead of Run on the
+// nominal objective o, with starting points drawn uniformly from
+// [−scale, scale] in every parameter (and s.Start first when given).
+func (s *Search) newMultiStart(o *objective, c searchConfig) *multiStart {
+	dim, scale := s.Shape.NumParams(), c.scale
+	ms := &multiStart{
+		dim: dim, restarts: c.restarts, maxEvals: c.maxEvals, target: c.target, goal: searchMargin * c.target,
+		simplex: 0.25 * scale, patience: 30 * dim, progress: 1e-3,
+		rng: rand.New(rand.NewPCG(s.Seed, 0x6c6f6f70)),
+		draw: func(rng *rand.Rand, x []float64) {
+			for i := range x {
+				x[i] = (2*rng.Float64() - 1) * scale
+			}
+		},
+		eval:       o.nominal,
+		needTarget: true,
+	}
+	if s.Start != nil {
+		ms.starts = [][]float64{s.Start}
+	}
+	return ms
 }
 
 // check runs the adaptive Wilson loop on the shape at x and fills a Result.

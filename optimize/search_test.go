@@ -273,7 +273,7 @@ func TestSearchNotConverged(t *testing.T) {
 	s := tripodSearch(t, gate("H"), false, fourier1)
 	s.MaxEvaluations = 40
 	res, err := s.Run(context.Background())
-	if !errors.Is(err, ErrNotConverged) || res == nil || res.Evaluations > 40 {
+	if !errors.Is(err, ErrTargetNotReached) || res == nil || res.Evaluations > 40 {
 		t.Errorf("budget of 40: %v, %+v", err, res)
 	}
 }

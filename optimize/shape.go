@@ -31,7 +31,7 @@ type Shape interface {
 	Point(s float64, p holonomy.Point)
 	// Points returns the number of loop points suggested for a fixed-size
 	// Wilson loop of this shape during a search.
-	Points() int
+	NumPoints() int
 	// Clone returns an independent copy with the same parameters.
 	Clone() Shape
 }
@@ -40,10 +40,10 @@ type Shape interface {
 const LengthPoints = 256
 
 // lengthPoints returns the number of chords for sh: the smallest multiple
-// of sh.Points() (so that polygon corners are samples) not below
+// of sh.NumPoints() (so that polygon corners are samples) not below
 // LengthPoints.
 func lengthPoints(sh Shape) int {
-	p := max(sh.Points(), 1)
+	p := max(sh.NumPoints(), 1)
 	return p * ((LengthPoints + p - 1) / p)
 }
 
@@ -160,7 +160,7 @@ func (f *Fourier) Point(s float64, p holonomy.Point) {
 }
 
 // Points returns 128 points per harmonic, at most 512.
-func (f *Fourier) Points() int { return min(128*f.Harmonics, 512) }
+func (f *Fourier) NumPoints() int { return min(128*f.Harmonics, 512) }
 
 // Clone returns an independent copy.
 func (f *Fourier) Clone() Shape {
@@ -295,7 +295,7 @@ func (pg *Polygon) Point(s float64, p holonomy.Point) {
 
 // Points returns a multiple of the number of edges near 128, so that every
 // vertex is a loop point.
-func (pg *Polygon) Points() int {
+func (pg *Polygon) NumPoints() int {
 	e := pg.Vertices + 1
 	return e * ((128 + e - 1) / e)
 }

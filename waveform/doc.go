@@ -1,17 +1,20 @@
 // Package waveform turns a loop in control space into a timed, sampled,
-// DAC-quantised drive waveform, verifies it by exact propagation in the full
-// level scheme and checks it against the hardware limits.
+// DAC-quantised drive waveform and checks it against the hardware limits.
 //
 // # Pipeline
 //
 // A Plan (level scheme, target gate, segments with unit-scale shapes) and a
 // Hardware description go into Build, which chooses the timing, samples the
-// drive at the AWG rate and converts it to DAC codes. Verify propagates the
-// quantised waveform with the holonomy engine's exact per-step propagator
-// under an ErrorModel and returns the fidelity, leakage, peak population of
-// the non-qubit levels, the adiabaticity parameter and a Check for every
-// goal and hardware limit. A failed check is reported, never repaired: the
-// samples are not clipped.
+// drive at the AWG rate and converts it to DAC codes. HardwareChecks gives
+// a Check for every hardware limit and MeasureAdiabaticity the adiabaticity
+// parameter of the samples. A failed check is reported, never repaired:
+// the samples are not clipped.
+//
+// The later stages live in sub-packages: waveform/sim simulates a waveform
+// under an error model and verifies it, waveform/robust sweeps error
+// models (robustness curves and map, error budget), waveform/dynamical
+// compares with a plain dynamical gate, and waveform/wavefile reads and
+// writes the files.
 //
 // # Units
 //
@@ -83,23 +86,5 @@
 // end to a multiple of Hardware.Granularity. DAC codes are signed
 // two's-complement integers code = round(x/FullScale·(2^(b−1)−1)) for
 // x = I or Q, with halves rounded away from zero; the drive the DAC emits,
-// and the one Verify propagates, is code·FullScale/(2^(b−1)−1).
-//
-// # Verification
-//
-// Simulate and Simulator.Run propagate the zero-order-hold waveform with
-// holonomy.Propagator.Step (exact per step, unitary), StepDecay when the
-// model has excited-level decay, and holonomy.Lindblad when it has qubit
-// dephasing; an ErrorModel adds amplitude and detuning errors, decay,
-// dephasing, a Gaussian or first-order low-pass model of the analog
-// bandwidth and a finite drive-phase resolution. Runs of
-// identical samples reuse one step propagator. The figures are the average
-// gate fidelity and leakage of Pedersen, Møller and Mølmer (Phys. Lett. A
-// 367, 47 (2007)), the peak population of the non-computational and of the
-// excited levels for each computational input, and optional decimated
-// population traces.
-//
-// # Files
-//
-// The file formats live in package waveform/wavefile.
+// and the one sim.Verify propagates, is code·FullScale/(2^(b−1)−1).
 package waveform

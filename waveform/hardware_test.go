@@ -1,4 +1,4 @@
-package waveform
+package waveform_test
 
 import (
 	"errors"
@@ -6,6 +6,9 @@ import (
 	"testing"
 
 	"github.com/loopgate/loopgate/holonomy"
+	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/internal/wavetest"
+	"github.com/loopgate/loopgate/waveform/sim"
 )
 
 // DAC codes: round half away from zero, symmetric range ±(2^(b−1) − 1),
@@ -26,27 +29,27 @@ func TestDACCodes(t *testing.T) {
 		{0.49 * lsb, 0}, {2.5 * lsb, 3}, {fs, 8191}, {-fs, -8191},
 	}
 	for _, c := range cases {
-		got, err := DACCode(c.x, fs, mc)
+		got, err := waveform.DACCode(c.x, fs, mc)
 		if err != nil || got != c.want {
 			t.Errorf("code(%g LSB) = %d, %v; want %d", c.x/lsb, got, err, c.want)
 		}
 	}
 	// Out of range is reported, not clipped.
-	if got, _ := DACCode(2*fs, fs, mc); got != 16382 {
+	if got, _ := waveform.DACCode(2*fs, fs, mc); got != 16382 {
 		t.Errorf("code(2 FS) = %d; want 16382 (unclipped)", got)
 	}
-	if _, err := DACCode(1e30, fs, mc); err == nil {
+	if _, err := waveform.DACCode(1e30, fs, mc); err == nil {
 		t.Error("no error for a drive beyond the int32 code range")
 	}
-	w := mustBuild(t, tripodPlan(math.Pi/4, 0.05), testHardware(3, 10e6))
+	w := wavetest.MustBuild(t, wavetest.TripodPlan(math.Pi/4, 0.05), wavetest.Hardware(3, 10e6))
 	for c := range w.I {
-		l := w.Hardware.lsb(c)
+		l := w.Hardware.LSB(c)
 		for k := range w.I[c] {
 			z := w.Quantized(c, k)
 			if math.Abs(real(z)-w.I[c][k]) > l/2*(1+1e-12) || math.Abs(imag(z)-w.Q[c][k]) > l/2*(1+1e-12) {
 				t.Fatalf("channel %d sample %d: quantised %v from (%g, %g), step %g", c, k, z, w.I[c][k], w.Q[c][k], l)
 			}
-			back, _ := DACCode(real(z), w.Hardware.FullScale[c], w.Hardware.MaxCode())
+			back, _ := waveform.DACCode(real(z), w.Hardware.FullScale[c], w.Hardware.MaxCode())
 			if back != w.CodeI[c][k] {
 				t.Fatalf("code %d → %g Hz → code %d", w.CodeI[c][k], real(z), back)
 			}
@@ -57,21 +60,21 @@ func TestDACCodes(t *testing.T) {
 // Every hardware check of a good design passes, with the limits the
 // timing planned for reached but not exceeded.
 func TestHardwareChecksPass(t *testing.T) {
-	hw := testHardware(3, 10e6)
+	hw := wavetest.Hardware(3, 10e6)
 	hw.MaxSlew = 5e13 // tight enough to bind along the loop
-	w := mustBuild(t, tripodPlan(math.Pi/4, 0.05), hw)
-	v := mustVerify(t, w, ErrorModel{})
+	w := wavetest.MustBuild(t, wavetest.TripodPlan(math.Pi/4, 0.05), hw)
+	v := wavetest.Must(sim.Verify(w, sim.ErrorModel{}))(t)
 	for _, c := range v.Checks {
 		t.Log(c)
 		if !c.Pass {
 			t.Errorf("failed: %v", c)
 		}
 	}
-	c, _ := findCheck(v, "slew rate pa")
+	c, _ := wavetest.FindCheck(v.Checks, waveform.SlewCheck, "pa")
 	if c.Value < 0.8*hw.MaxSlew {
 		t.Errorf("slew limit does not bind: %v", c)
 	}
-	c, _ = findCheck(v, "peak Rabi frequency pa")
+	c, _ = wavetest.FindCheck(v.Checks, waveform.PeakRabiCheck, "pa")
 	if c.Value < 0.99*hw.MaxRabi[2] {
 		t.Errorf("amplitude limit not used: %v", c)
 	}
@@ -84,16 +87,19 @@ func TestHardwareChecksPass(t *testing.T) {
 // sample: limits lowered after the design, and a maximum duration the
 // adiabatic timing cannot meet.
 func TestHardwareViolations(t *testing.T) {
-	w := mustBuild(t, tripodPlan(math.Pi/4, 0.05), testHardware(3, 10e6))
+	w := wavetest.MustBuild(t, wavetest.TripodPlan(math.Pi/4, 0.05), wavetest.Hardware(3, 10e6))
 	before := append([]float64(nil), w.I[2]...)
 	w.Hardware.MaxRabi[2] = 5e6
 	w.Hardware.MaxSlew = 1e12
 	w.CodeQ[0][100] = 9000 // beyond the 14-bit range
-	v := mustVerify(t, w, ErrorModel{})
-	for _, name := range []string{"peak Rabi frequency pa", "slew rate pa", "DAC code range p0"} {
-		c, ok := findCheck(v, name)
+	v := wavetest.Must(sim.Verify(w, sim.ErrorModel{}))(t)
+	for _, want := range []struct {
+		kind    waveform.CheckKind
+		channel string
+	}{{waveform.PeakRabiCheck, "pa"}, {waveform.SlewCheck, "pa"}, {waveform.DACRangeCheck, "p0"}} {
+		c, ok := wavetest.FindCheck(v.Checks, want.kind, want.channel)
 		if !ok || c.Pass || c.Margin >= 0 {
-			t.Errorf("%s: %v (found %v)", name, c, ok)
+			t.Errorf("%v: %v (found %v)", want, c, ok)
 		}
 	}
 	if v.Pass() {
@@ -105,21 +111,21 @@ func TestHardwareViolations(t *testing.T) {
 		}
 	}
 	// The adiabatic gate needs about 3.6 µs; allow only 1 µs.
-	hw := testHardware(3, 10e6)
+	hw := wavetest.Hardware(3, 10e6)
 	hw.MaxDuration = 1e-6
-	w = mustBuild(t, tripodPlan(math.Pi/4, 0.05), hw)
-	v = mustVerify(t, w, ErrorModel{})
-	c, _ := findCheck(v, "duration")
+	w = wavetest.MustBuild(t, wavetest.TripodPlan(math.Pi/4, 0.05), hw)
+	v = wavetest.Must(sim.Verify(w, sim.ErrorModel{}))(t)
+	c, _ := wavetest.FindCheck(v.Checks, waveform.DurationCheck, "")
 	if c.Pass || c.Margin > -2e-6 {
 		t.Errorf("duration check: %v", c)
 	}
 	t.Log(c)
 	// Too many samples is refused before allocating.
-	hw = testHardware(3, 10e6)
+	hw = wavetest.Hardware(3, 10e6)
 	hw.MaxSamples = 1000
-	_, err := Build(tripodPlan(math.Pi/4, 0.05), hw)
-	var le *LimitError
-	if !errors.As(err, &le) || le.Check.Name != "sample count" || le.Check.Margin >= 0 {
+	_, err := waveform.Build(wavetest.TripodPlan(math.Pi/4, 0.05), hw)
+	var le *waveform.LimitError
+	if !errors.As(err, &le) || le.Check.Kind != waveform.SampleCountCheck || le.Check.Margin >= 0 {
 		t.Errorf("sample limit: %v", err)
 	} else {
 		t.Log(err)
@@ -129,21 +135,21 @@ func TestHardwareViolations(t *testing.T) {
 // Minimum duration stretches the gate; the DAC full scale below the Rabi
 // limit caps the amplitude.
 func TestDurationAndFullScale(t *testing.T) {
-	hw := testHardware(2, 10e6)
+	hw := wavetest.Hardware(2, 10e6)
 	hw.MinDuration = 1e-6
-	w := mustBuild(t, lambdaPlan(math.Pi/4, 0, hadamard()), hw)
+	w := wavetest.MustBuild(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), hw)
 	if w.Duration() < 1e-6 {
 		t.Errorf("duration %g below the minimum", w.Duration())
 	}
-	hw = testHardware(2, 10e6)
+	hw = wavetest.Hardware(2, 10e6)
 	hw.FullScale = []float64{4e6, 4e6}
-	w = mustBuild(t, lambdaPlan(math.Pi/4, 0, hadamard()), hw)
-	v := mustVerify(t, w, ErrorModel{})
+	w = wavetest.MustBuild(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), hw)
+	v := wavetest.Must(sim.Verify(w, sim.ErrorModel{}))(t)
 	if !v.Pass() {
 		t.Errorf("failed: %v", v.Failed())
 	}
 	for _, c := range v.Checks {
-		if c.Name == "peak Rabi frequency p1" && c.Value > 4e6 {
+		if c.Kind == waveform.PeakRabiCheck && c.Channel == "p1" && c.Value > 4e6 {
 			t.Errorf("peak %g above the full scale", c.Value)
 		}
 	}
@@ -151,27 +157,30 @@ func TestDurationAndFullScale(t *testing.T) {
 
 // Invalid plans and hardware descriptions are errors naming the problem.
 func TestBuildErrors(t *testing.T) {
-	good := testHardware(3, 10e6)
+	good := wavetest.Hardware(3, 10e6)
 	cases := []struct {
 		name string
-		mod  func(p *Plan, h *Hardware)
+		mod  func(p *waveform.Plan, h *waveform.Hardware)
 	}{
-		{"no segments", func(p *Plan, h *Hardware) { p.Segments = nil }},
-		{"open loop", func(p *Plan, h *Hardware) { p.Segments[0].Shape = openLoop }},
-		{"channel count", func(p *Plan, h *Hardware) { h.MaxRabi = h.MaxRabi[:2] }},
-		{"NaN sample rate", func(p *Plan, h *Hardware) { h.SampleRate = math.NaN() }},
-		{"DAC bits", func(p *Plan, h *Hardware) { h.DACBits = 40 }},
-		{"min above max", func(p *Plan, h *Hardware) { h.MinDuration = 2 * h.MaxDuration }},
-		{"target shape", func(p *Plan, h *Hardware) { p.Target = hadamard().Clone(); p.Target.R, p.Target.C = 1, 4 }},
-		{"loop that does not move", func(p *Plan, h *Hardware) { p.Segments[0].Shape = fixedPoint }},
-		{"no drive", func(p *Plan, h *Hardware) { p.Segments[0].Shape = func(float64, holonomy.Point) {} }},
-		{"degenerate base point", func(p *Plan, h *Hardware) { p.Segments[0].Shape = degenerateBase }},
+		{"no segments", func(p *waveform.Plan, h *waveform.Hardware) { p.Segments = nil }},
+		{"open loop", func(p *waveform.Plan, h *waveform.Hardware) { p.Segments[0].Shape = openLoop }},
+		{"channel count", func(p *waveform.Plan, h *waveform.Hardware) { h.MaxRabi = h.MaxRabi[:2] }},
+		{"NaN sample rate", func(p *waveform.Plan, h *waveform.Hardware) { h.SampleRate = math.NaN() }},
+		{"DAC bits", func(p *waveform.Plan, h *waveform.Hardware) { h.DACBits = 40 }},
+		{"min above max", func(p *waveform.Plan, h *waveform.Hardware) { h.MinDuration = 2 * h.MaxDuration }},
+		{"target shape", func(p *waveform.Plan, h *waveform.Hardware) {
+			p.Target = wavetest.Hadamard().Clone()
+			p.Target.R, p.Target.C = 1, 4
+		}},
+		{"loop that does not move", func(p *waveform.Plan, h *waveform.Hardware) { p.Segments[0].Shape = fixedPoint }},
+		{"no drive", func(p *waveform.Plan, h *waveform.Hardware) { p.Segments[0].Shape = func(float64, holonomy.Point) {} }},
+		{"degenerate base point", func(p *waveform.Plan, h *waveform.Hardware) { p.Segments[0].Shape = degenerateBase }},
 	}
 	for _, c := range cases {
-		p := tripodPlan(math.Pi/4, 0.05)
-		h := good.clone()
+		p := wavetest.TripodPlan(math.Pi/4, 0.05)
+		h := good.Clone()
 		c.mod(p, &h)
-		_, err := Build(p, h)
+		_, err := waveform.Build(p, h)
 		if err == nil {
 			t.Errorf("%s: no error", c.name)
 			continue
@@ -191,4 +200,28 @@ func fixedPoint(s float64, p holonomy.Point) { p.Drive[2] = 1 }
 // there, so the qubit level g1 is degenerate with the auxiliary level.
 func degenerateBase(s float64, p holonomy.Point) {
 	holonomy.TripodPoint(p, 1, math.Pi/2*(1-math.Cos(2*math.Pi*s))/2+math.Pi/2, 0)
+}
+
+// CheckKindOf reads back the kind and channel of every check that Verify
+// and HardwareChecks write, so that a file storing only names loses
+// nothing; unknown names have kind 0.
+func TestCheckKindOf(t *testing.T) {
+	w := wavetest.MustBuild(t, wavetest.TripodPlan(math.Pi/4, 0.05), wavetest.Hardware(3, 10e6))
+	v := wavetest.Must(sim.Verify(w, sim.ErrorModel{}))(t)
+	seen := map[waveform.CheckKind]bool{}
+	for _, c := range v.Checks {
+		t.Run(c.Name, func(t *testing.T) {
+			k, ch := waveform.CheckKindOf(c.Name)
+			if k != c.Kind || ch != c.Channel || k.Lower() != c.Lower {
+				t.Errorf("CheckKindOf(%q) = %v, %q; the check has %v, %q", c.Name, k, ch, c.Kind, c.Channel)
+			}
+		})
+		seen[c.Kind] = true
+	}
+	if len(seen) != 9 {
+		t.Errorf("%d kinds of check, want all 9", len(seen))
+	}
+	if k, _ := waveform.CheckKindOf("colour"); k != 0 {
+		t.Errorf("unknown name: kind %v", k)
+	}
 }

@@ -8,37 +8,37 @@ import (
 	"github.com/loopgate/loopgate/holonomy"
 )
 
-// Kind says how a segment of a gate is traversed.
-type Kind int
+// SegmentKind says how a segment of a gate is traversed.
+type SegmentKind int
 
 const (
-	// Adiabatic segments ramp the amplitude up at the loop's base point,
+	// AdiabaticSegment: segments that ramp the amplitude up at the loop's base point,
 	// traverse the loop slowly enough for the working subspace to follow
 	// (Wilczek–Zee holonomy) and ramp down again.
-	Adiabatic Kind = iota + 1
-	// Cyclic segments hold a fixed drive direction under an envelope of
+	AdiabaticSegment SegmentKind = iota + 1
+	// CyclicSegment: segments that hold a fixed drive direction under an envelope of
 	// prescribed pulse area, so that the driven (bright) state returns
 	// to itself (nonadiabatic holonomy).
-	Cyclic
+	CyclicSegment
 )
 
 // String returns "adiabatic" or "cyclic", the names used in files.
-func (k Kind) String() string {
+func (k SegmentKind) String() string {
 	switch k {
-	case Adiabatic:
+	case AdiabaticSegment:
 		return "adiabatic"
-	case Cyclic:
+	case CyclicSegment:
 		return "cyclic"
 	}
-	return fmt.Sprintf("Kind(%d)", int(k))
+	return fmt.Sprintf("SegmentKind(%d)", int(k))
 }
 
-func ParseKind(s string) (Kind, error) {
+func ParseSegmentKind(s string) (SegmentKind, error) {
 	switch s {
 	case "adiabatic":
-		return Adiabatic, nil
+		return AdiabaticSegment, nil
 	case "cyclic":
-		return Cyclic, nil
+		return CyclicSegment, nil
 	}
 	return 0, fmt.Errorf("unknown segment kind %q (want adiabatic or cyclic)", s)
 }
@@ -46,7 +46,7 @@ func ParseKind(s string) (Kind, error) {
 // Segment is one part of a gate.
 type Segment struct {
 	// Kind says how the segment is traversed.
-	Kind Kind
+	Kind SegmentKind
 	// Shape gives the unit-scale control point at loop parameter s in
 	// [0, 1]; Shape(0) must equal Shape(1). The physical point at time t is
 	// A(t)·Shape(s(t)) (drives and controlled detunings) plus the scheme's
@@ -172,10 +172,10 @@ func (h *Hardware) Validate(nch int) error {
 func (h *Hardware) MaxCode() float64 { return float64(int64(1)<<(h.DACBits-1) - 1) }
 
 // lsb returns the drive step (Hz) of one DAC code on channel c.
-func (h *Hardware) lsb(c int) float64 { return h.FullScale[c] / h.MaxCode() }
+func (h *Hardware) LSB(c int) float64 { return h.FullScale[c] / h.MaxCode() }
 
 // clone returns a deep copy.
-func (h Hardware) clone() Hardware {
+func (h Hardware) Clone() Hardware {
 	h.MaxRabi = append([]float64(nil), h.MaxRabi...)
 	h.FullScale = append([]float64(nil), h.FullScale...)
 	return h
@@ -220,7 +220,7 @@ func (p *Plan) Validate() error {
 			return fmt.Errorf("plan: segment %d has no shape", i)
 		}
 		switch s.Kind {
-		case Adiabatic:
+		case AdiabaticSegment:
 			clearPoint(a)
 			clearPoint(b)
 			s.Shape(0, a)
@@ -231,7 +231,7 @@ func (p *Plan) Validate() error {
 			if d := pointDist(a, b); d > 1e-9*(1+pointNorm(a)) {
 				return fmt.Errorf("plan: segment %d: loop does not close (|Shape(1) − Shape(0)| = %.3g)", i, d)
 			}
-		case Cyclic:
+		case CyclicSegment:
 			if !positive(s.Area) {
 				return fmt.Errorf("plan: segment %d: pulse area %v rad; need a positive finite number", i, s.Area)
 			}

@@ -136,9 +136,9 @@ func TestSlurmArray(t *testing.T) {
 	os.WriteFile(bad, []byte("site,hardware.max_rabi\nt0,16 MHz\nt1,16.5 us\n"), 0o644)
 	work := filepath.Join(dir, "bad-work")
 	_, err = runBatch("batch", "plan", batchBase, bad, "--gates", "H,SX", "-o", work, "-q")
-	if design.ExitCode(err) != design.ExitBadInput || err == nil ||
+	if design.ExitStatus(err) != design.ExitBadInput || err == nil ||
 		!strings.Contains(err.Error(), `bad.csv row 3, column hardware.max_rabi = "16.5 us": spec field hardware.max_rabi:`) {
-		t.Errorf("bad row: exit %d, %v", design.ExitCode(err), err)
+		t.Errorf("bad row: exit %d, %v", design.ExitStatus(err), err)
 	}
 	if _, serr := os.Stat(work); !errors.Is(serr, fs.ErrNotExist) {
 		t.Errorf("a refused plan wrote %s", work)

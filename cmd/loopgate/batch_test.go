@@ -36,8 +36,8 @@ func TestBatchCommands(t *testing.T) {
 		t.Errorf("run one task: %v\n%s", err, out)
 	}
 	out, err = runBatch("batch", "collect", work)
-	if design.ExitCode(err) != design.ExitChecks || !strings.Contains(out, "1 passed") || !strings.Contains(out, "7 not run") {
-		t.Errorf("collect with 7 tasks not run: exit %d, %v\n%s", design.ExitCode(err), err, out)
+	if design.ExitStatus(err) != design.ExitChecks || !strings.Contains(out, "1 passed") || !strings.Contains(out, "7 not run") {
+		t.Errorf("collect with 7 tasks not run: exit %d, %v\n%s", design.ExitStatus(err), err, out)
 	}
 	for _, c := range []struct {
 		args []string
@@ -49,8 +49,8 @@ func TestBatchCommands(t *testing.T) {
 		{[]string{"batch", "plan", batchBase, batchTable, "--gates", "H", "-o", filepath.Join(dir, "w2"), "--mem", "lots"}, design.ExitBadInput},
 		{[]string{"batch", "plan", batchBase, batchTable, "-o", filepath.Join(dir, "w3")}, design.ExitBadInput},
 	} {
-		if _, err := runBatch(c.args...); design.ExitCode(err) != c.code {
-			t.Errorf("%v: exit %d (%v); want %d", c.args, design.ExitCode(err), err, c.code)
+		if _, err := runBatch(c.args...); design.ExitStatus(err) != c.code {
+			t.Errorf("%v: exit %d (%v); want %d", c.args, design.ExitStatus(err), err, c.code)
 		}
 	}
 }

@@ -14,8 +14,6 @@ import (
 	"os/signal"
 	"strings"
 	"syscall"
-
-	"github.com/loopgate/loopgate/design"
 )
 
 func main() {
@@ -26,9 +24,9 @@ func main() {
 		if !errors.Is(err, errPrinted) {
 			fmt.Fprintln(os.Stderr, "loopgate:", err)
 		}
-		code := design.ExitCode(err)
-		if code == design.ExitInternal && strings.HasPrefix(err.Error(), "unknown command") {
-			code = design.ExitBadInput // cobra's own usage error
+		code := exitCode(err)
+		if code == exitInternal && strings.HasPrefix(err.Error(), "unknown command") {
+			code = exitBadInput // cobra's own usage error
 		}
 		os.Exit(code)
 	}

@@ -21,7 +21,7 @@ func run(t *testing.T, args ...string) (string, int) {
 	root.SetErr(&out)
 	root.SetArgs(args)
 	err := root.ExecuteContext(context.Background())
-	return out.String(), design.ExitCode(err)
+	return out.String(), exitCode(err)
 }
 
 func TestCommands(t *testing.T) {
@@ -35,20 +35,20 @@ func TestCommands(t *testing.T) {
 	}{
 		{"gates", []string{"gates"}, 0, "Hadamard"},
 		{"schema", []string{"schema", "waveform"}, 0, `"$schema"`},
-		{"unknown schema", []string{"schema", "nope"}, design.ExitBadInput, ""},
+		{"unknown schema", []string{"schema", "nope"}, exitBadInput, ""},
 		{"starter", []string{"starter", "tripod"}, 0, "preset: tripod"},
-		{"unknown flag", []string{"design", "--no-such-flag"}, design.ExitBadInput, ""},
-		{"bad spec", []string{"design", filepath.Join("..", "..", "testdata", "bad", "nan.yaml"), "-o", t.TempDir()}, design.ExitBadInput, ""},
-		{"missing spec", []string{"design", "no-such-file.yaml", "-o", t.TempDir()}, design.ExitBadInput, ""},
+		{"unknown flag", []string{"design", "--no-such-flag"}, exitBadInput, ""},
+		{"bad spec", []string{"design", filepath.Join("..", "..", "testdata", "bad", "nan.yaml"), "-o", t.TempDir()}, exitBadInput, ""},
+		{"missing spec", []string{"design", "no-such-file.yaml", "-o", t.TempDir()}, exitBadInput, ""},
 		{"design", []string{"design", lambda, "-o", dir, "--no-sweeps", "--no-report", "-q"}, 0, "fidelity"},
-		{"design again", []string{"design", lambda, "-o", dir, "--no-sweeps", "--no-report", "-q"}, design.ExitOutput, ""},
+		{"design again", []string{"design", lambda, "-o", dir, "--no-sweeps", "--no-report", "-q"}, exitOutput, ""},
 		{"verify", []string{"verify", filepath.Join(dir, "waveform.json"), "--no-sweeps", "--json"}, 0, `"reproduced": true`},
-		{"verify bad flag value", []string{"verify", filepath.Join(dir, "waveform.json"), "--amplitude-error", "2 MHz"}, design.ExitBadInput, ""},
-		{"verify directory", []string{"verify", dir}, design.ExitBadInput, ""},
+		{"verify bad flag value", []string{"verify", filepath.Join(dir, "waveform.json"), "--amplitude-error", "2 MHz"}, exitBadInput, ""},
+		{"verify directory", []string{"verify", dir}, exitBadInput, ""},
 		{"verify filter", []string{"verify", filepath.Join(dir, "waveform.json"), "--no-sweeps", "--rise-time", "5 ns", "--filter", "first-order", "--phase-step", "pi/256"}, 0, "phase resolution"},
-		{"verify bad filter", []string{"verify", filepath.Join(dir, "waveform.json"), "--filter", "boxcar"}, design.ExitBadInput, ""},
+		{"verify bad filter", []string{"verify", filepath.Join(dir, "waveform.json"), "--filter", "boxcar"}, exitBadInput, ""},
 		{"check", []string{"check", filepath.Join(dir, "loop.json")}, 0, "pass"},
-		{"check other target", []string{"check", filepath.Join(dir, "loop.json"), "--target", "Z"}, design.ExitChecks, "FAIL"},
+		{"check other target", []string{"check", filepath.Join(dir, "loop.json"), "--target", "Z"}, exitChecks, "FAIL"},
 	}
 	for _, c := range cases {
 		out, code := run(t, c.args...)
@@ -74,5 +74,22 @@ func TestDesignJSON(t *testing.T) {
 	}
 	if o.Ideal.Fidelity < 0.9999 || !o.Pass || len(o.Files) != 4 {
 		t.Errorf("outcome %+v", o)
+	}
+}
+
+// TestOverwriteHint checks that a refused existing output names the flag
+// that allows replacing it.
+func TestOverwriteHint(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "s.yaml")
+	if _, code := run(t, "starter", "lambda", "-o", path); code != 0 {
+		t.Fatalf("first write: exit %d", code)
+	}
+	root := newRoot()
+	root.SetOut(new(bytes.Buffer))
+	root.SetErr(new(bytes.Buffer))
+	root.SetArgs([]string{"starter", "lambda", "-o", path})
+	err := root.ExecuteContext(context.Background())
+	if exitCode(err) != exitOutput || !strings.Contains(err.Error(), overwriteFlag) {
+		t.Errorf("second write: %v (exit %d); want exit %d naming %s", err, exitCode(err), exitOutput, overwriteFlag)
 	}
 }

@@ -38,10 +38,10 @@ func printOutcome(w io.Writer, o *design.Outcome) {
 			}
 		}
 	}
-	fmt.Fprintf(w, "waveform    %d samples, %s at %s\n", o.Samples, si(o.Duration, "s"), si(o.SampleRate, "S/s"))
+	fmt.Fprintf(w, "waveform    %d samples, %s at %s\n", o.Samples, design.FormatSI(o.Duration, "s"), design.FormatSI(o.SampleRate, "S/s"))
 	printFigures(w, "ideal", o.Ideal)
 	printFigures(w, "with errors", o.WithErrors)
-	if o.WithErrors.Fidelity < o.Ideal.Fidelity && len(o.Checks) > 0 && o.Checks[0].Name == "fidelity" && o.WithErrors.Fidelity < o.Checks[0].Limit {
+	if o.WithErrors.Fidelity < o.Ideal.Fidelity && len(o.Checks) > 0 && o.Checks[0].IsFidelity() && o.WithErrors.Fidelity < o.Checks[0].Limit {
 		fmt.Fprintf(w, "            note: with the error model on, the fidelity is below the goal %g; the checks and the exit code\n"+
 			"            refer to the ideal model — see the error budget for what to improve\n", o.Checks[0].Limit)
 	}
@@ -152,15 +152,12 @@ func width(v float64, unit string) string {
 	if unit == "" {
 		return fmt.Sprintf("%.3g %%", 100*v)
 	}
-	return si(v, unit)
+	return design.FormatSI(v, unit)
 }
 
 func num(v float64, unit string) string {
 	if unit == "" {
 		return fmt.Sprintf("%.6g", v)
 	}
-	return si(v, unit)
+	return design.FormatSI(v, unit)
 }
-
-// si formats v with an SI prefix.
-func si(v float64, unit string) string { return design.FormatSI(v, unit) }

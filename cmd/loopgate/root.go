@@ -4,15 +4,15 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
-	"github.com/loopgate/loopgate/design/spec"
 	"io"
+	"io/fs"
 	"os"
 	"strings"
 
+	"github.com/loopgate/loopgate/design"
+	"github.com/loopgate/loopgate/design/spec"
 	"github.com/spf13/cobra"
 	"golang.org/x/term"
-
-	"github.com/loopgate/loopgate/design"
 )
 
 // errPrinted marks an error whose message was already printed.
@@ -65,12 +65,13 @@ func inputArgs(check cobra.PositionalArgs) cobra.PositionalArgs {
 	}
 }
 
-// stderrProgress returns os.Stderr when it is a terminal and quiet is off.
-func stderrProgress(quiet bool) io.Writer {
+// stderrProgress returns a progress bar on os.Stderr when it is a
+// terminal and quiet is off, and nil otherwise.
+func stderrProgress(quiet bool) func(design.Progress) {
 	if quiet || !term.IsTerminal(int(os.Stderr.Fd())) {
 		return nil
 	}
-	return os.Stderr
+	return newProgressBar(os.Stderr)
 }
 
 func printJSON(w io.Writer, v any) error {
@@ -99,6 +100,9 @@ func emit(cmd *cobra.Command, asJSON bool, res any, have bool, text func(io.Writ
 func finish(err error) error {
 	if err == nil {
 		return nil
+	}
+	if errors.Is(err, fs.ErrExist) {
+		return fmt.Errorf("%w; use %s to replace it", err, overwriteFlag)
 	}
 	var chk *design.ChecksFailedError
 	if errors.As(err, &chk) {
@@ -149,11 +153,11 @@ Existing files are not replaced unless --overwrite is given.`,
 				return &design.InputError{Err: err}
 			}
 			opt := design.Options{
-				OutDir:    out,
-				Overwrite: overwrite,
-				NoReport:  noReport,
-				NoSweeps:  noSweeps,
-				Progress:  stderrProgress(quiet || asJSON),
+				OutDir:     out,
+				Overwrite:  overwrite,
+				NoReport:   noReport,
+				NoSweeps:   noSweeps,
+				OnProgress: stderrProgress(quiet || asJSON),
 			}
 			if cmd.Flags().Changed("seed") {
 				opt.Seed = &seed
@@ -196,11 +200,11 @@ in the file is used unless flags override its terms.`,
 		Args: inputArgs(cobra.ExactArgs(1)),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			opt := design.VerifyOptions{
-				Errors:    errs,
-				Report:    report,
-				Overwrite: overwrite,
-				NoSweeps:  noSweeps,
-				Progress:  stderrProgress(quiet || asJSON),
+				Errors:     errs,
+				Report:     report,
+				Overwrite:  overwrite,
+				NoSweeps:   noSweeps,
+				OnProgress: stderrProgress(quiet || asJSON),
 			}
 			res, err := design.VerifyFile(cmd.Context(), args[0], opt)
 			return emit(cmd, asJSON, res, res != nil, func(w io.Writer) { printOutcome(w, res) }, err)
@@ -304,8 +308,8 @@ func newStarterCmd() *cobra.Command {
 				_, err = cmd.OutOrStdout().Write(b)
 				return err
 			}
-			if err := design.WriteFileAtomic(out, b, overwrite); err != nil {
-				return &design.OutputError{Err: err}
+			if err := design.WriteOutput(out, b, overwrite); err != nil {
+				return finish(err)
 			}
 			if asJSON {
 				return printJSON(cmd.OutOrStdout(), map[string]string{"preset": args[0], "file": out})

@@ -100,11 +100,11 @@ func designInto(ctx context.Context, ts *taskSpec, dir string) (*TaskResult, err
 const reportFile = design.ReportFile
 
 // exitCode maps an error to the loopgate command's exit code.
-func exitCode(err error) int { return design.ExitCode(err) }
+func exitCode(err error) int { return design.ExitStatus(err) }
 
 // writeFileAtomic replaces path with data, never leaving a partial file.
 func writeFileAtomic(path string, data []byte) error {
-	return design.WriteFileAtomic(path, data, true)
+	return design.WriteOutput(path, data, true)
 }
 
 // inputError marks err as bad input (exit code 2).

@@ -185,48 +185,11 @@ func TestBrowserRendersReport(t *testing.T) {
 
 	// 1. The document Chromium built holds every table and figure.
 	dom := string(runChromium(t, bin, "--dump-dom", "file://"+page))
-	for _, id := range tableIDs {
-		re := regexp.MustCompile(`<table id="` + id + `"[^>]*>[\s\S]*?</table>`)
-		tab := re.FindString(dom)
-		if tab == "" {
-			t.Errorf("table %s missing from the rendered document", id)
-			continue
-		}
-		if n := strings.Count(tab, "<tr"); n < 2 {
-			t.Errorf("table %s has %d rows in the rendered document", id, n)
-		}
-	}
-	for _, id := range figureIDs {
-		re := regexp.MustCompile(`<figure id="` + id + `"[^>]*>\s*<svg `)
-		if !re.MatchString(dom) {
-			t.Errorf("figure %s has no SVG in the rendered document", id)
-		}
-	}
-
+	checkRenderedDOM(t, dom)
 	// 2. The page as a reader sees it.
 	clean := screenshot(t, bin, page, filepath.Join(dir, "report.png"))
 	bg := color.NRGBA{0xe9, 0xec, 0xee, 255}
-	if out := os.Getenv("LOOPGATE_REPORT_PNG"); out != "" {
-		// Keep the page and a margin of background below it.
-		full := rgba(clean)
-		last := full.Bounds().Min.Y
-		for y := full.Bounds().Min.Y; y < full.Bounds().Max.Y; y++ {
-			for x := full.Bounds().Min.X; x < full.Bounds().Max.X; x += 3 {
-				if !close3(full.RGBAAt(x, y), bg, 2) {
-					last = y
-					break
-				}
-			}
-		}
-		trimmed := full.SubImage(image.Rect(full.Bounds().Min.X, full.Bounds().Min.Y, full.Bounds().Max.X, min(full.Bounds().Max.Y, last+28)))
-		var b bytes.Buffer
-		if err := png.Encode(&b, trimmed); err != nil {
-			t.Fatal(err)
-		}
-		if err := os.WriteFile(out, b.Bytes(), 0o644); err != nil {
-			t.Fatal(err)
-		}
-	}
+	savePNG(t, clean, bg)
 	// The window must hold the whole page: the bottom rows show only the
 	// page background.
 	cb := clean.Bounds()
@@ -254,7 +217,67 @@ func TestBrowserRendersReport(t *testing.T) {
 	// 4. Judge each figure's panels, left of its key column, in the
 	// unmarked screenshot: a share of drawn pixels, and each expected series
 	// colour on the data (the key alone cannot satisfy this).
-	img := rgba(clean)
+	checkFigurePixels(t, rgba(clean), boxes)
+}
+
+// checkRenderedDOM checks that the document Chromium built holds every
+// table (with rows) and every figure (with an SVG).
+func checkRenderedDOM(t *testing.T, dom string) {
+	t.Helper()
+	for _, id := range tableIDs {
+		re := regexp.MustCompile(`<table id="` + id + `"[^>]*>[\s\S]*?</table>`)
+		tab := re.FindString(dom)
+		if tab == "" {
+			t.Errorf("table %s missing from the rendered document", id)
+			continue
+		}
+		if n := strings.Count(tab, "<tr"); n < 2 {
+			t.Errorf("table %s has %d rows in the rendered document", id, n)
+		}
+	}
+	for _, id := range figureIDs {
+		re := regexp.MustCompile(`<figure id="` + id + `"[^>]*>\s*<svg `)
+		if !re.MatchString(dom) {
+			t.Errorf("figure %s has no SVG in the rendered document", id)
+		}
+	}
+
+}
+
+// savePNG writes the page part of the screenshot, with a margin of
+// background below it, to $LOOPGATE_REPORT_PNG when that is set.
+func savePNG(t *testing.T, clean image.Image, bg color.NRGBA) {
+	t.Helper()
+	out := os.Getenv("LOOPGATE_REPORT_PNG")
+	if out == "" {
+		return
+	}
+	// Keep the page and a margin of background below it.
+	full := rgba(clean)
+	last := full.Bounds().Min.Y
+	for y := full.Bounds().Min.Y; y < full.Bounds().Max.Y; y++ {
+		for x := full.Bounds().Min.X; x < full.Bounds().Max.X; x += 3 {
+			if !close3(full.RGBAAt(x, y), bg, 2) {
+				last = y
+				break
+			}
+		}
+	}
+	trimmed := full.SubImage(image.Rect(full.Bounds().Min.X, full.Bounds().Min.Y, full.Bounds().Max.X, min(full.Bounds().Max.Y, last+28)))
+	var b bytes.Buffer
+	if err := png.Encode(&b, trimmed); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(out, b.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// checkFigurePixels judges each figure's panels, left of its key column:
+// a share of drawn pixels, and each expected series colour on the data
+// (the key alone cannot satisfy this).
+func checkFigurePixels(t *testing.T, img *image.RGBA, boxes map[string]image.Rectangle) {
+	t.Helper()
 	want := figureColours()
 	panelPx := int(math.Floor((figW - keyW - keyGap) * pxPerPt))
 	for _, id := range figureIDs {

@@ -11,6 +11,26 @@ func validate(d *Data) error {
 	if d == nil {
 		return errors.New("report: no data (nil *Data)")
 	}
+	for _, check := range []func(*Data) error{
+		validateAdvantage,
+		validateVerification,
+		validateLoop,
+		validateWaveforms,
+		validatePopulations,
+		validateSweeps,
+		validateMap,
+		validateBudget,
+		validateChecks,
+	} {
+		if err := check(d); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// validateAdvantage checks the geometric-advantage rows of d.
+func validateAdvantage(d *Data) error {
 	for i, r := range d.Advantage {
 		f := fmt.Sprintf("Advantage[%d] (%q)", i, r.Axis)
 		if err := finite(f+".Geometric", r.Geometric); err != nil {
@@ -26,6 +46,11 @@ func validate(d *Data) error {
 			return fmt.Errorf("report: %s.Ratio is %g; want a ratio ≥ 0, +Inf or NaN", f, r.Ratio)
 		}
 	}
+	return nil
+}
+
+// validateVerification checks the verification figures of d.
+func validateVerification(d *Data) error {
 	if v := d.Verification; v != nil {
 		for _, q := range []struct {
 			name string
@@ -39,6 +64,11 @@ func validate(d *Data) error {
 			return fmt.Errorf("report: Verification.Samples is %d; want ≥ 0", v.Samples)
 		}
 	}
+	return nil
+}
+
+// validateLoop checks the loop figure data of d.
+func validateLoop(d *Data) error {
 	if l := d.Loop; l != nil {
 		if len(l.Channels) == 0 {
 			return errors.New("report: Loop.Channels is empty; name at least one channel")
@@ -75,6 +105,11 @@ func validate(d *Data) error {
 			return errors.New("report: Loop.Drive is zero at every sample; the normalised drive is undefined")
 		}
 	}
+	return nil
+}
+
+// validateWaveforms checks the waveform traces of d.
+func validateWaveforms(d *Data) error {
 	for i, w := range d.Waveforms {
 		f := fmt.Sprintf("Waveforms[%d] (%q)", i, w.Channel)
 		if len(w.Time) < 2 {
@@ -99,6 +134,11 @@ func validate(d *Data) error {
 			return fmt.Errorf("report: %s.MaxRabi is %g; want ≥ 0 (0: no limit)", f, w.MaxRabi)
 		}
 	}
+	return nil
+}
+
+// validatePopulations checks the population traces of d.
+func validatePopulations(d *Data) error {
 	for i, p := range d.Populations {
 		f := fmt.Sprintf("Populations[%d] (input %q)", i, p.Input)
 		if len(p.Time) < 2 {
@@ -119,6 +159,11 @@ func validate(d *Data) error {
 			}
 		}
 	}
+	return nil
+}
+
+// validateSweeps checks the robustness sweeps of d.
+func validateSweeps(d *Data) error {
 	for i, s := range d.Sweeps {
 		f := fmt.Sprintf("Sweeps[%d] (%q)", i, s.Axis)
 		if len(s.X) < 2 {
@@ -140,6 +185,11 @@ func validate(d *Data) error {
 			return err
 		}
 	}
+	return nil
+}
+
+// validateMap checks the robustness map of d.
+func validateMap(d *Data) error {
 	if m := d.Map; m != nil {
 		if len(m.X) < 2 || len(m.Y) < 2 {
 			return fmt.Errorf("report: Map is %d×%d points; want at least 2×2", len(m.X), len(m.Y))
@@ -170,11 +220,21 @@ func validate(d *Data) error {
 			}
 		}
 	}
+	return nil
+}
+
+// validateBudget checks the error budget of d.
+func validateBudget(d *Data) error {
 	for i, r := range d.Budget {
 		if err := finite(fmt.Sprintf("Budget[%d] (%q).Infidelity", i, r.Term), r.Infidelity); err != nil {
 			return err
 		}
 	}
+	return nil
+}
+
+// validateChecks checks the check rows of d.
+func validateChecks(d *Data) error {
 	for i, r := range d.Checks {
 		f := fmt.Sprintf("Checks[%d] (%q)", i, r.Name)
 		if err := finite(f+".Value", r.Value); err != nil {

@@ -2,10 +2,10 @@ package spec
 
 import (
 	"math"
-	"math/cmplx"
 	"testing"
 
 	"github.com/loopgate/loopgate/holonomy"
+	"github.com/loopgate/loopgate/holonomy/holonomytest"
 )
 
 func gate(t *testing.T, name string) *holonomy.Mat {
@@ -25,23 +25,6 @@ func mul(ms ...*holonomy.Mat) *holonomy.Mat {
 		out = p
 	}
 	return out
-}
-
-// phaseDist is min over φ of ‖a − e^{iφ} b‖_F for 2×2 matrices.
-func phaseDist(a, b *holonomy.Mat) float64 {
-	var ov complex128
-	for i := range a.Data {
-		ov += cmplx.Conj(b.Data[i]) * a.Data[i]
-	}
-	ph := complex(1, 0)
-	if cmplx.Abs(ov) > 0 {
-		ph = ov / complex(cmplx.Abs(ov), 0)
-	}
-	c := b.Clone()
-	for i := range c.Data {
-		c.Data[i] *= ph
-	}
-	return holonomy.FrobeniusDist(a, c)
 }
 
 const tol = 1e-14
@@ -159,13 +142,13 @@ func TestRotationMatchesGates(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if d := phaseDist(r, gate(t, c.gate)); d > 1e-14 {
+		if d := holonomytest.PhaseDistance(r, gate(t, c.gate)); d > 1e-14 {
 			t.Errorf("R(%v, %v) differs from %s by %g (up to phase)", c.axis, c.angle, c.gate, d)
 		}
 	}
 	// A wrong rotation must be detected by the same measure.
 	r, _ := Rotation([3]float64{1, 0, 0}, math.Pi/2)
-	if d := phaseDist(r, gate(t, "H")); d < 0.1 {
+	if d := holonomytest.PhaseDistance(r, gate(t, "H")); d < 0.1 {
 		t.Errorf("phaseDist cannot tell √X from H (%g)", d)
 	}
 	if _, err := Rotation([3]float64{}, 1); err == nil {

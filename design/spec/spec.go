@@ -248,11 +248,11 @@ type ErrorModel struct {
 	PhaseStep float64
 }
 
-// Sweep is a 1-D robustness sweep from −Span to +Span.
+// Sweep is a 1-D robustness sweep from −HalfWidth to +HalfWidth.
 type Sweep struct {
-	// Span is the half-width: a relative error for amplitude sweeps, Δ/2π
+	// HalfWidth is the half-width: a relative error for amplitude sweeps, Δ/2π
 	// in Hz for detuning sweeps.
-	Span float64
+	HalfWidth float64
 	// Points is the number of sweep points.
 	Points int
 }
@@ -261,7 +261,7 @@ type Sweep struct {
 type Sweeps struct {
 	// Amplitude sweeps the common amplitude error.
 	Amplitude Sweep
-	// Detuning sweeps a detuning error (Span as Δ/2π in Hz).
+	// Detuning sweeps a detuning error (HalfWidth as Δ/2π in Hz).
 	Detuning Sweep
 	// DetuningKind says which detuning the sweep and the map vary.
 	DetuningKind DetuningKind
@@ -318,6 +318,10 @@ type Problem struct {
 	Line, Col int
 	// Msg says what is wrong and what was expected.
 	Msg string
+	// Err is the kind of problem: one of the sentinel errors ErrSyntax,
+	// ErrUnknownKey, ErrMissing, ErrWrongType, ErrBadUnit, ErrOutOfBounds,
+	// ErrNotUnitary or ErrInvalid.
+	Err error
 }
 
 // SpecError reports every problem found in a spec.
@@ -345,7 +349,9 @@ func (e *SpecError) Error() string {
 
 func (p Problem) format(file string) string {
 	var b strings.Builder
-	fmt.Fprintf(&b, "spec %s: ", file)
+	if file != "" {
+		fmt.Fprintf(&b, "spec %s: ", file)
+	}
 	switch {
 	case p.Path != "" && p.Line > 0 && p.Col > 0:
 		fmt.Fprintf(&b, "%s (line %d, col %d): ", p.Path, p.Line, p.Col)
@@ -424,7 +430,7 @@ func LoadSpec(path string) (*Spec, error) {
 // field and its line and column.
 func ParseSpec(data []byte, name string) (*Spec, error) {
 	if len(data) > MaxSpecBytes {
-		return nil, &SpecError{File: name, Problems: []Problem{{Msg: fmt.Sprintf("file is larger than %d bytes; a spec is a short YAML file", MaxSpecBytes)}}}
+		return nil, &SpecError{File: name, Problems: []Problem{{Msg: fmt.Sprintf("file is larger than %d bytes; a spec is a short YAML file", MaxSpecBytes), Err: ErrOutOfBounds}}}
 	}
 	doc, idx, perr := readYAML(data)
 	if perr != nil {

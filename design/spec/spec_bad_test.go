@@ -91,6 +91,29 @@ var badCases = []struct {
 	{"filter-without-rise-time.yaml", "errors.rise_time", 1, []string{"the gaussian filter needs a positive rise time"}},
 }
 
+// badKinds is the sentinel error the first problem of each bad file
+// carries; errors.Is must find it through the *SpecError.
+var badKinds = map[string]error{
+	"malformed-yaml.yaml": ErrSyntax, "tab-indent.yaml": ErrSyntax, "empty.yaml": ErrSyntax,
+	"comments-only.yaml": ErrSyntax, "two-documents.yaml": ErrSyntax, "duplicate-key.yaml": ErrSyntax,
+	"yaml-tag.yaml": ErrSyntax, "alias-bomb.yaml": ErrSyntax, "nan.yaml": ErrSyntax, "inf.yaml": ErrSyntax,
+	"not-a-mapping.yaml": ErrWrongType, "wrong-type.yaml": ErrWrongType,
+	"wrong-type-quantity.yaml": ErrWrongType, "wrong-type-list.yaml": ErrWrongType,
+	"unknown-key.yaml":     ErrMissing, // sample_rate is missing (line 11) before the misspelt key (line 13)
+	"unknown-section.yaml": ErrUnknownKey, "unknown-channel.yaml": ErrUnknownKey,
+	"missing-field.yaml": ErrMissing, "missing-section.yaml": ErrMissing, "spin-missing.yaml": ErrMissing,
+	"missing-channel-value.yaml": ErrMissing,
+	"zero-restarts.yaml":         ErrOutOfBounds, "too-many-restarts.yaml": ErrOutOfBounds,
+	"too-many-samples.yaml": ErrOutOfBounds, "too-many-levels.yaml": ErrOutOfBounds,
+	"map-too-large.yaml": ErrOutOfBounds, "negative-rabi.yaml": ErrOutOfBounds,
+	"zero-sample-rate.yaml": ErrOutOfBounds, "zero-duration.yaml": ErrOutOfBounds,
+	"negative-decay.yaml": ErrOutOfBounds, "sample-memory.yaml": ErrOutOfBounds,
+	"min-duration-too-many-samples.yaml": ErrOutOfBounds, "too-many-evaluations.yaml": ErrOutOfBounds,
+	"unit-wrong-for-field.yaml": ErrBadUnit, "unit-unparseable.yaml": ErrBadUnit,
+	"unit-wrong-dimension.yaml": ErrBadUnit, "unit-misspelt.yaml": ErrBadUnit, "unit-missing.yaml": ErrBadUnit,
+	"non-unitary.yaml": ErrNotUnitary, "non-unitary-digits.yaml": ErrNotUnitary,
+}
+
 func TestBadInput(t *testing.T) {
 	listed := map[string]bool{}
 	for _, c := range badCases {
@@ -116,6 +139,13 @@ func TestBadInput(t *testing.T) {
 					t.Fatalf("error is %T, not *SpecError", err)
 				}
 				return
+			}
+			want, ok := badKinds[c.file]
+			if !ok {
+				want = ErrInvalid
+			}
+			if !errors.Is(err, want) || !errors.Is(&se.Problems[0], want) {
+				t.Errorf("first problem is %v, want errors.Is(err, %v)", se.Problems[0].Err, want)
 			}
 			if len(se.Problems) != c.count {
 				t.Errorf("%d problems, want %d:\n%s", len(se.Problems), c.count, msg)

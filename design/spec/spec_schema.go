@@ -44,7 +44,7 @@ func validateSchema(doc any, idx *index) []Problem {
 	s, sdoc := specSchema()
 	res, err := s.Validate(gojsonschema.NewGoLoader(doc))
 	if err != nil {
-		return []Problem{{Msg: "cannot check the spec against its schema: " + err.Error()}}
+		return []Problem{{Msg: "cannot check the spec against its schema: " + err.Error(), Err: ErrInvalid}}
 	}
 	if res.Valid() {
 		return nil
@@ -79,7 +79,7 @@ func hasDeeper(errs []gojsonschema.ResultError, segs string) bool {
 
 func schemaProblem(re gojsonschema.ResultError, segs string, idx *index, sdoc map[string]any) Problem {
 	p := idx.bySegs[segs]
-	prob := Problem{Path: p.path, Line: p.line, Col: p.col}
+	prob := Problem{Path: p.path, Line: p.line, Col: p.col, Err: ErrInvalid}
 	sub := schemaAt(sdoc, segs)
 	det := re.Details()
 	switch re.Type() {
@@ -88,7 +88,7 @@ func schemaProblem(re gojsonschema.ResultError, segs string, idx *index, sdoc ma
 		kp := idx.bySegs[segs+segSep+key]
 		prob.Path, prob.Line, prob.Col = childPath(p.path, key), kp.keyLine, kp.keyCol
 		keys := propertyNames(sub)
-		prob.Msg = fmt.Sprintf("unknown key %q", key)
+		prob.Msg, prob.Err = fmt.Sprintf("unknown key %q", key), ErrUnknownKey
 		if g := closest(key, keys); g != "" {
 			prob.Msg += fmt.Sprintf(" (did you mean %q?)", g)
 		}
@@ -101,11 +101,12 @@ func schemaProblem(re gojsonschema.ResultError, segs string, idx *index, sdoc ma
 		if p.path == "" {
 			prob.Line, prob.Col = 0, 0
 		}
-		prob.Msg = "missing"
+		prob.Msg, prob.Err = "missing", ErrMissing
 		if d := describe(schemaChild(sdoc, sub, key)); d != "" {
 			prob.Msg += "; expected: " + d
 		}
 	case "invalid_type":
+		prob.Err = ErrWrongType
 		prob.Msg = fmt.Sprintf("expected %s; found %s", expectedType(sub), describeValue(re.Value()))
 		if d := quantityDim(sub); d != 0 {
 			prob.Msg = fmt.Sprintf("expected %s written as a string with its unit, e.g. %q; found %s", dims[d].noun, dims[d].example, describeValue(re.Value()))
@@ -115,7 +116,7 @@ func schemaProblem(re gojsonschema.ResultError, segs string, idx *index, sdoc ma
 		pat := fmt.Sprint(det["pattern"])
 		if d, ok := dimByPattern[pat]; ok {
 			if _, err := ParseQuantity(v, d); err != nil {
-				prob.Msg = err.Error()
+				prob.Msg, prob.Err = err.Error(), ErrBadUnit
 				break
 			}
 		}
@@ -128,12 +129,16 @@ func schemaProblem(re gojsonschema.ResultError, segs string, idx *index, sdoc ma
 	case "enum":
 		prob.Msg = fmt.Sprintf("%s is not accepted; expected one of: %s", describeValue(re.Value()), enumList(sub))
 	case "number_gte", "number_gt":
+		prob.Err = ErrOutOfBounds
 		prob.Msg = fmt.Sprintf("%s is too small; the least accepted value is %s", describeValue(re.Value()), fmtNum(det["min"]))
 	case "number_lte", "number_lt":
+		prob.Err = ErrOutOfBounds
 		prob.Msg = fmt.Sprintf("%s is too large; the largest accepted value is %s (a documented bound)", describeValue(re.Value()), fmtNum(det["max"]))
 	case "array_min_items":
+		prob.Err = ErrOutOfBounds
 		prob.Msg = fmt.Sprintf("a list of %d items is too short; expected at least %v", listLen(re.Value()), det["min"])
 	case "array_max_items":
+		prob.Err = ErrOutOfBounds
 		prob.Msg = fmt.Sprintf("a list of %d items is too long; expected at most %v", listLen(re.Value()), det["max"])
 	case "array_min_properties", "array_max_properties":
 		if keys := propertyNames(sub); len(keys) > 0 && sub["maxProperties"] == 1.0 {
@@ -142,6 +147,7 @@ func schemaProblem(re gojsonschema.ResultError, segs string, idx *index, sdoc ma
 			prob.Msg = "an empty mapping; expected at least one entry"
 		}
 	case "string_lte":
+		prob.Err = ErrOutOfBounds
 		prob.Msg = fmt.Sprintf("the text is too long; at most %v characters", det["max"])
 	default:
 		prob.Msg = re.Description()

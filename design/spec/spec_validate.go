@@ -43,14 +43,20 @@ func formatBytes(b float64) string {
 // checker collects problems of a resolved Spec.
 type checker struct{ probs []Problem }
 
+// bad records an ErrInvalid problem.
 func (c *checker) bad(path, format string, args ...any) {
-	c.probs = append(c.probs, Problem{Path: path, Msg: fmt.Sprintf(format, args...)})
+	c.badErr(path, ErrInvalid, format, args...)
+}
+
+// badErr records a problem of kind err (a sentinel).
+func (c *checker) badErr(path string, err error, format string, args ...any) {
+	c.probs = append(c.probs, Problem{Path: path, Msg: fmt.Sprintf(format, args...), Err: err})
 }
 
 // positive checks x > 0 and finite.
 func (c *checker) positive(path string, x float64, dim Dimension) bool {
 	if !holonomy.Finite(x) || x <= 0 {
-		c.bad(path, "must be positive; found %s", showValue(x, dim))
+		c.badErr(path, ErrOutOfBounds, "must be positive; found %s", showValue(x, dim))
 		return false
 	}
 	return true
@@ -58,7 +64,7 @@ func (c *checker) positive(path string, x float64, dim Dimension) bool {
 
 func (c *checker) intRange(path string, x, lo, hi int, what string) {
 	if x < lo || x > hi {
-		c.bad(path, "%s must be from %d to %d; found %d", what, lo, hi, x)
+		c.badErr(path, ErrOutOfBounds, "%s must be from %d to %d; found %d", what, lo, hi, x)
 	}
 }
 
@@ -114,7 +120,7 @@ func (s *Spec) checkTarget(c *checker) {
 		}
 	}
 	if e := holonomy.UnitarityError(u); !(e <= UnitarityTol) {
-		c.bad("target.unitary", "not unitary: ‖U†U − I‖ = %.3g (Frobenius norm) exceeds the tolerance %g; write the entries with at least 10 significant digits", e, UnitarityTol)
+		c.badErr("target.unitary", ErrNotUnitary, "not unitary: ‖U†U − I‖ = %.3g (Frobenius norm) exceeds the tolerance %g; write the entries with at least 10 significant digits", e, UnitarityTol)
 	}
 }
 
@@ -151,13 +157,30 @@ func (s *Spec) checkScheme(c *checker) bool {
 			c.bad(s.levelPath(k, "detuning"), "must be finite; found %v", l.Detuning)
 		}
 		if !holonomy.Finite(l.Decay) || l.Decay < 0 {
-			c.bad(s.levelPath(k, "decay"), "a decay rate must be zero or positive; found %s", showValue(l.Decay, Rate))
+			c.badErr(s.levelPath(k, "decay"), ErrOutOfBounds, "a decay rate must be zero or positive; found %s", showValue(l.Decay, Rate))
 		}
 	}
 	if len(sc.Channels) == 0 || len(sc.Channels) > MaxChannels {
 		c.bad("scheme.channels", "%d channels; a scheme has 1 to %d", len(sc.Channels), MaxChannels)
 		return false
 	}
+	s.checkChannels(c)
+	s.checkQubit(c)
+	if len(c.probs) == n0 {
+		// The engine's own structural check; the checks above are meant to
+		// cover it with better messages, so this is a safety net.
+		if err := sc.Validate(); err != nil {
+			c.bad("scheme", "%v", err)
+		}
+	}
+	return len(c.probs) == n0
+}
+
+// checkChannels checks names, levels, transitions and factors of the
+// scheme's channels.
+func (s *Spec) checkChannels(c *checker) {
+	sc := s.Scheme
+	n := len(sc.Levels)
 	seenC := map[string]int{}
 	pairs := map[[2]int]int{}
 	for i, ch := range sc.Channels {
@@ -191,6 +214,13 @@ func (s *Spec) checkScheme(c *checker) bool {
 			c.bad(p+".factor", "the matrix-element factor must be finite and non-zero; found %v", ch.Factor)
 		}
 	}
+}
+
+// checkQubit checks that the qubit is two different levels of the scheme,
+// each coupled by a channel.
+func (s *Spec) checkQubit(c *checker) {
+	sc := s.Scheme
+	n := len(sc.Levels)
 	q := sc.Computational
 	switch {
 	case len(q) != 2:
@@ -212,14 +242,6 @@ func (s *Spec) checkScheme(c *checker) bool {
 			}
 		}
 	}
-	if len(c.probs) == n0 {
-		// The engine's own structural check; the checks above are meant to
-		// cover it with better messages, so this is a safety net.
-		if err := sc.Validate(); err != nil {
-			c.bad("scheme", "%v", err)
-		}
-	}
-	return len(c.probs) == n0
 }
 
 // checkWorkingSubspace checks that the scheme offers the method a working
@@ -363,11 +385,11 @@ func (s *Spec) checkHardware(c *checker, nch int) {
 	okN := h.MaxSamples >= 1 && h.MaxSamples <= MaxSampleCount
 	c.intRange("hardware.max_samples", h.MaxSamples, 1, MaxSampleCount, "the sample count")
 	if okN && h.Granularity > h.MaxSamples {
-		c.bad("hardware.granularity", "%d is more than max_samples %d", h.Granularity, h.MaxSamples)
+		c.badErr("hardware.granularity", ErrOutOfBounds, "%d is more than max_samples %d", h.Granularity, h.MaxSamples)
 	}
 	if okN {
 		if err := CheckSampleMemory(h.MaxSamples, nch); err != nil {
-			c.bad("hardware.max_samples", "%v", err)
+			c.badErr("hardware.max_samples", ErrOutOfBounds, "%v", err)
 		}
 	}
 	c.intRange("hardware.dac_bits", h.DACBits, MinDACBits, MaxDACBits, "the DAC resolution in bits")
@@ -378,7 +400,7 @@ func (s *Spec) checkHardware(c *checker, nch int) {
 	}
 	if okMin && okRate && okN {
 		if need := math.Ceil(h.MinDuration*h.SampleRate - 1e-9); need > float64(h.MaxSamples) {
-			c.bad("hardware.min_duration", "a gate of at least %s at %s needs %.0f samples, more than max_samples %d",
+			c.badErr("hardware.min_duration", ErrOutOfBounds, "a gate of at least %s at %s needs %.0f samples, more than max_samples %d",
 				FormatQuantity(h.MinDuration, Time), FormatQuantity(h.SampleRate, SampleRate), need, h.MaxSamples)
 		}
 	}
@@ -401,7 +423,7 @@ func (s *Spec) checkSearch(c *checker) {
 	c.intRange("search.evaluations", r.Evaluations, 1, MaxEvaluations, "the evaluation budget")
 	if r.Restarts >= 1 && r.Evaluations >= 1 && r.Restarts <= MaxRestarts && r.Evaluations <= MaxEvaluations &&
 		r.Restarts*r.Evaluations > MaxTotalEvaluations {
-		c.bad("search.evaluations", "restarts × evaluations = %d × %d = %d is more than the bound %d", r.Restarts, r.Evaluations, r.Restarts*r.Evaluations, MaxTotalEvaluations)
+		c.badErr("search.evaluations", ErrOutOfBounds, "restarts × evaluations = %d × %d = %d is more than the bound %d", r.Restarts, r.Evaluations, r.Restarts*r.Evaluations, MaxTotalEvaluations)
 	}
 	c.intRange("search.loop_points", r.LoopPoints, MinLoopPoints, MaxLoopPoints, "the number of loop points")
 	if r.Seed > MaxSeed {
@@ -475,11 +497,11 @@ func (s *Spec) checkErrors(c *checker, nch int) {
 
 func (s *Spec) checkSweeps(c *checker) {
 	w := &s.Sweeps
-	if a := w.Amplitude.Span; !holonomy.Finite(a) || a <= 0 || a >= 1 {
+	if a := w.Amplitude.HalfWidth; !holonomy.Finite(a) || a <= 0 || a >= 1 {
 		c.bad("sweeps.amplitude.span", "must be above 0 and below 1; found %v", a)
 	}
 	c.intRange("sweeps.amplitude.points", w.Amplitude.Points, 2, MaxSweepPoints, "the number of sweep points")
-	c.positive("sweeps.detuning.span", w.Detuning.Span, Frequency)
+	c.positive("sweeps.detuning.span", w.Detuning.HalfWidth, Frequency)
 	c.intRange("sweeps.detuning.points", w.Detuning.Points, 2, MaxSweepPoints, "the number of sweep points")
 	s.checkKind(c, "sweeps.detuning.kind", w.DetuningKind)
 	c.intRange("sweeps.map.amplitude_points", w.MapAmplitude, 2, MaxMapPoints, "the number of map points")

@@ -93,20 +93,20 @@ var yamlLineRE = regexp.MustCompile(`^yaml: line (\d+): (.*)$`)
 // the position of every node.
 func readYAML(data []byte) (doc any, idx *index, prob *Problem) {
 	if len(bytes.TrimSpace(data)) == 0 {
-		return nil, nil, &Problem{Msg: "file is empty; expected a YAML spec with spec_version, target, scheme, method and hardware"}
+		return nil, nil, &Problem{Msg: "file is empty; expected a YAML spec with spec_version, target, scheme, method and hardware", Err: ErrSyntax}
 	}
 	dec := yaml.NewDecoder(bytes.NewReader(data))
 	var root yaml.Node
 	if err := safeDecode(dec, &root, 0); err != nil {
 		if errors.Is(err, io.EOF) {
-			return nil, nil, &Problem{Msg: "file holds no YAML content (only comments or blank lines); expected a YAML spec with spec_version, target, scheme, method and hardware"}
+			return nil, nil, &Problem{Msg: "file holds no YAML content (only comments or blank lines); expected a YAML spec with spec_version, target, scheme, method and hardware", Err: ErrSyntax}
 		}
 		return nil, nil, yamlProblem(err)
 	}
 	var second yaml.Node
 	if err := safeDecode(dec, &second, 1); err == nil {
 		if second.Kind != 0 && !(second.Kind == yaml.DocumentNode && len(second.Content) == 0) {
-			return nil, nil, &Problem{Line: second.Line, Col: second.Column, Msg: "a second YAML document starts here; a spec is one document (remove the '---' separator)"}
+			return nil, nil, &Problem{Line: second.Line, Col: second.Column, Msg: "a second YAML document starts here; a spec is one document (remove the '---' separator)", Err: ErrSyntax}
 		}
 	} else if !errors.Is(err, io.EOF) {
 		return nil, nil, yamlProblem(err)
@@ -115,7 +115,7 @@ func readYAML(data []byte) (doc any, idx *index, prob *Problem) {
 	top := &root
 	if top.Kind == yaml.DocumentNode {
 		if len(top.Content) == 0 {
-			return nil, nil, &Problem{Msg: "file holds no YAML content; expected a YAML spec with spec_version, target, scheme, method and hardware"}
+			return nil, nil, &Problem{Msg: "file holds no YAML content; expected a YAML spec with spec_version, target, scheme, method and hardware", Err: ErrSyntax}
 		}
 		top = top.Content[0]
 	}
@@ -141,9 +141,9 @@ func yamlProblem(err error) *Problem {
 	msg := err.Error()
 	if m := yamlLineRE.FindStringSubmatch(msg); m != nil {
 		line, _ := strconv.Atoi(m[1])
-		return &Problem{Line: line, Msg: "malformed YAML: " + m[2]}
+		return &Problem{Line: line, Msg: "malformed YAML: " + m[2], Err: ErrSyntax}
 	}
-	return &Problem{Msg: "malformed YAML: " + strings.TrimPrefix(msg, "yaml: ")}
+	return &Problem{Msg: "malformed YAML: " + strings.TrimPrefix(msg, "yaml: "), Err: ErrSyntax}
 }
 
 type yconv struct {
@@ -154,7 +154,7 @@ type yconv struct {
 
 func (c *yconv) fail(path string, line, col int, format string, args ...any) any {
 	if c.prob == nil {
-		c.prob = &Problem{Path: path, Line: line, Col: col, Msg: fmt.Sprintf(format, args...)}
+		c.prob = &Problem{Path: path, Line: line, Col: col, Msg: fmt.Sprintf(format, args...), Err: ErrSyntax}
 	}
 	return nil
 }

@@ -5,11 +5,12 @@ import (
 	"encoding/hex"
 	"errors"
 	"fmt"
-	"github.com/loopgate/loopgate/waveform"
 	"io"
 	"math"
 
 	"github.com/loopgate/loopgate/holonomy"
+	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/sim"
 )
 
 const (
@@ -53,7 +54,7 @@ type File struct {
 	// Waveform is the waveform.
 	Waveform *waveform.Waveform
 	// Verification is the verification written with it.
-	Verification *waveform.Verification
+	Verification *sim.Verification
 }
 
 // SpecHash returns the lower-case hexadecimal SHA-256 of spec.
@@ -151,14 +152,14 @@ type detuningDoc struct {
 }
 
 type verificationDoc struct {
-	Model        modelDoc   `json:"model"`
-	Fidelity     float64    `json:"fidelity"`
-	Leakage      float64    `json:"leakage"`
-	PeakAux      []float64  `json:"peak_aux_population"`
-	PeakExcited  []float64  `json:"peak_excited_population"`
-	Adiabaticity *float64   `json:"adiabaticity"`
-	Checks       []checkDoc `json:"checks"`
-	Pass         bool       `json:"pass"`
+	Model        modelDoc      `json:"model"`
+	Fidelity     float64       `json:"fidelity"`
+	Leakage      float64       `json:"leakage"`
+	PeakAux      []float64     `json:"peak_aux_population"`
+	PeakExcited  []float64     `json:"peak_excited_population"`
+	Adiabaticity *float64      `json:"adiabaticity"`
+	Checks       []CheckRecord `json:"checks"`
+	Pass         bool          `json:"pass"`
 }
 
 type modelDoc struct {
@@ -178,7 +179,9 @@ type modelDoc struct {
 	Quantized bool    `json:"quantized"`
 }
 
-type checkDoc struct {
+// CheckRecord is a check as files and printed outcomes carry it: the
+// display name, the numbers, the bound ("max" or "min") and the verdict.
+type CheckRecord struct {
 	Name   string  `json:"name"`
 	Value  float64 `json:"value"`
 	Limit  float64 `json:"limit"`
@@ -214,14 +217,19 @@ func newMatDoc(m *holonomy.Mat) matDoc {
 	return d
 }
 
-func newCheckDocs(cs []waveform.Check) []checkDoc {
-	out := []checkDoc{}
+// NewCheckRecord returns the record of c.
+func NewCheckRecord(c waveform.Check) CheckRecord {
+	b := "max"
+	if c.Lower {
+		b = "min"
+	}
+	return CheckRecord{Name: c.Name, Value: c.Value, Limit: c.Limit, Margin: c.Margin, Unit: c.Unit, Bound: b, Pass: c.Pass}
+}
+
+func newCheckDocs(cs []waveform.Check) []CheckRecord {
+	out := []CheckRecord{}
 	for _, c := range cs {
-		b := "max"
-		if c.Lower {
-			b = "min"
-		}
-		out = append(out, checkDoc{Name: c.Name, Value: c.Value, Limit: c.Limit, Margin: c.Margin, Unit: c.Unit, Bound: b, Pass: c.Pass})
+		out = append(out, NewCheckRecord(c))
 	}
 	return out
 }
@@ -259,7 +267,7 @@ func (f *File) doc() (*waveDoc, error) {
 		LevelDetunings: []detuningDoc{},
 		Spec:           f.Spec,
 	}
-	for _, s := range w.Spans {
+	for _, s := range w.Segments {
 		d.Segments = append(d.Segments, segmentDoc{Kind: s.Kind.String(), First: s.First, Samples: s.Len, Ramp: s.Ramp, Area: s.Area, Amplitude: s.Amplitude, MinGap: s.MinGap})
 	}
 	for c, ch := range w.Scheme.Channels {
@@ -276,7 +284,7 @@ func (f *File) doc() (*waveDoc, error) {
 			AmplitudeError: m.AmplitudeError, ChannelErrors: orEmpty(m.ChannelErrors),
 			OnePhotonDetuning: m.OnePhotonDetuning, TwoPhotonDetuning: m.TwoPhotonDetuning,
 			Decay: m.Decay, Dephasing: m.Dephasing, Filter: m.FilterName(), RiseTime: m.RiseTime, SubSteps: m.SubSteps,
-			PhaseStep: m.PhaseStep, Quantized: !m.Unquantized,
+			PhaseStep: m.PhaseStep, Quantized: !m.SkipDAC,
 		},
 		Fidelity: v.Fidelity, Leakage: v.Leakage,
 		PeakAux: orEmpty(v.PeakAux), PeakExcited: orEmpty(v.PeakExcited),

@@ -6,8 +6,6 @@ import (
 	"encoding/csv"
 	"encoding/json"
 	"errors"
-	"github.com/loopgate/loopgate/waveform"
-	"github.com/loopgate/loopgate/waveform/internal/wavetest"
 	"math"
 	"reflect"
 	"strconv"
@@ -16,15 +14,18 @@ import (
 
 	"github.com/loopgate/loopgate/holonomy"
 	"github.com/loopgate/loopgate/schemas"
+	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/internal/wavetest"
+	"github.com/loopgate/loopgate/waveform/sim"
 	"github.com/xeipuuv/gojsonschema"
 )
 
 const testSpec = "# invented demo spec for the tests\ngate: H\nscheme: tripod\n"
 
-func testFile(t testing.TB, p *waveform.Plan, hw waveform.Hardware, m waveform.ErrorModel) *File {
+func testFile(t testing.TB, p *waveform.Plan, hw waveform.Hardware, m sim.ErrorModel) *File {
 	t.Helper()
 	w := wavetest.MustBuild(t, p, hw)
-	v := wavetest.MustVerify(t, w, m)
+	v := wavetest.Must(sim.Verify(w, m))(t)
 	return &File{ToolVersion: "test", SpecSHA256: SpecHash([]byte(testSpec)), Seed: 1<<63 + 5, Spec: testSpec, Waveform: w, Verification: v}
 }
 
@@ -109,15 +110,15 @@ func described(schema []byte, ref string) bool {
 // Written files validate against the shipped schemas, for an adiabatic
 // and a cyclic gate and a model with every error term.
 func TestWrittenFilesValidate(t *testing.T) {
-	full := waveform.ErrorModel{AmplitudeError: 0.01, ChannelErrors: []float64{0.01, -0.02, 0}, OnePhotonDetuning: 1e5, TwoPhotonDetuning: 1e3,
+	full := sim.ErrorModel{AmplitudeError: 0.01, ChannelErrors: []float64{0.01, -0.02, 0}, OnePhotonDetuning: 1e5, TwoPhotonDetuning: 1e3,
 		Decay: 1e4, Dephasing: 1e3, RiseTime: 2e-9, SubSteps: 4}
 	firstOrder := full
-	firstOrder.Filter, firstOrder.PhaseStep = waveform.FirstOrderFilter, math.Pi
+	firstOrder.Filter, firstOrder.PhaseStep = sim.FirstOrderFilter, math.Pi
 	files := []*File{
-		testFile(t, wavetest.TripodPlan(math.Pi/4, 0.05), wavetest.Hardware(3, 10e6), waveform.ErrorModel{}),
+		testFile(t, wavetest.TripodPlan(math.Pi/4, 0.05), wavetest.Hardware(3, 10e6), sim.ErrorModel{}),
 		testFile(t, wavetest.TripodPlan(math.Pi/4, 0.05), wavetest.Hardware(3, 10e6), full),
 		testFile(t, wavetest.TripodPlan(math.Pi/4, 0.05), wavetest.Hardware(3, 10e6), firstOrder),
-		testFile(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6), waveform.ErrorModel{}),
+		testFile(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6), sim.ErrorModel{}),
 	}
 	for _, f := range files {
 		validate(t, schemas.Waveform, encode(t, f))
@@ -142,7 +143,7 @@ func TestWaveformRoundTrip(t *testing.T) {
 	shape := p.Segments[0].Shape
 	p.Segments[0].Shape = func(s float64, pt holonomy.Point) { shape(s, pt); pt.Detuning[3] = 0.01 * math.Sin(2*math.Pi*s) }
 	p.Scheme.Levels[3].Detuning = 2 * math.Pi * 1.7e3
-	f := testFile(t, p, wavetest.Hardware(3, 10e6), waveform.ErrorModel{AmplitudeError: 0.02, Decay: 1e3})
+	f := testFile(t, p, wavetest.Hardware(3, 10e6), sim.ErrorModel{AmplitudeError: 0.02, Decay: 1e3})
 	b1 := encode(t, f)
 	g, err := ReadWaveform(bytes.NewReader(b1), "round.json")
 	if err != nil {
@@ -154,7 +155,7 @@ func TestWaveformRoundTrip(t *testing.T) {
 	}
 	w, r := f.Waveform, g.Waveform
 	if !reflect.DeepEqual(w.I, r.I) || !reflect.DeepEqual(w.Q, r.Q) || !reflect.DeepEqual(w.CodeI, r.CodeI) ||
-		!reflect.DeepEqual(w.CodeQ, r.CodeQ) || !reflect.DeepEqual(w.Detuning, r.Detuning) || !reflect.DeepEqual(w.Spans, r.Spans) ||
+		!reflect.DeepEqual(w.CodeQ, r.CodeQ) || !reflect.DeepEqual(w.Detuning, r.Detuning) || !reflect.DeepEqual(w.Segments, r.Segments) ||
 		!reflect.DeepEqual(w.Hardware, r.Hardware) || !reflect.DeepEqual(w.Scheme, r.Scheme) || !reflect.DeepEqual(w.Target, r.Target) ||
 		w.Adiabaticity != r.Adiabaticity || w.MinFidelity != r.MinFidelity || !reflect.DeepEqual(w.LevelHz, r.LevelHz) {
 		t.Error("waveform differs after the round trip")
@@ -165,7 +166,7 @@ func TestWaveformRoundTrip(t *testing.T) {
 	if r.Detuning[3] == nil {
 		t.Error("detuning track lost")
 	}
-	v, err := waveform.Verify(r, g.Verification.Model)
+	v, err := sim.Verify(r, g.Verification.Model)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -185,13 +186,13 @@ func TestWaveformRoundTrip(t *testing.T) {
 // re-verifying it reproduces the recorded figures bit for bit.
 func TestModelFilterAndPhaseStepRoundTrip(t *testing.T) {
 	for _, c := range []struct {
-		m            waveform.ErrorModel
+		m            sim.ErrorModel
 		filter, step string
 	}{
-		{waveform.ErrorModel{}, `"filter": "none"`, `"phase_step_rad": 0,`},
-		{waveform.ErrorModel{Filter: waveform.FirstOrderFilter}, `"filter": "none"`, `"phase_step_rad": 0,`},
-		{waveform.ErrorModel{RiseTime: 2e-9, SubSteps: 4}, `"filter": "gaussian"`, `"phase_step_rad": 0,`},
-		{waveform.ErrorModel{Filter: waveform.FirstOrderFilter, RiseTime: 2e-9, PhaseStep: 2 * math.Pi / 1024, TwoPhotonDetuning: 1e4},
+		{sim.ErrorModel{}, `"filter": "none"`, `"phase_step_rad": 0,`},
+		{sim.ErrorModel{Filter: sim.FirstOrderFilter}, `"filter": "none"`, `"phase_step_rad": 0,`},
+		{sim.ErrorModel{RiseTime: 2e-9, SubSteps: 4}, `"filter": "gaussian"`, `"phase_step_rad": 0,`},
+		{sim.ErrorModel{Filter: sim.FirstOrderFilter, RiseTime: 2e-9, PhaseStep: 2 * math.Pi / 1024, TwoPhotonDetuning: 1e4},
 			`"filter": "first-order"`, `"phase_step_rad": 0.006135923151542565,`},
 	} {
 		f := testFile(t, wavetest.LambdaPlan(math.Pi/3, 0.7, wavetest.NDotSigma(math.Pi/3, 0.7)), wavetest.Hardware(2, 10e6), c.m)
@@ -210,7 +211,7 @@ func TestModelFilterAndPhaseStepRoundTrip(t *testing.T) {
 		if gm.FilterName() != c.m.FilterName() || gm.RiseTime != c.m.RiseTime || gm.PhaseStep != c.m.PhaseStep || gm.SubSteps != c.m.SubSteps {
 			t.Errorf("model %+v read back as %+v", c.m, gm)
 		}
-		v := wavetest.MustVerify(t, g.Waveform, gm)
+		v := wavetest.Must(sim.Verify(g.Waveform, gm))(t)
 		if !v.Same(f.Verification) || !v.Same(g.Verification) {
 			t.Errorf("model %+v: re-verification differs (F %.17g vs %.17g)", c.m, v.Fidelity, f.Verification.Fidelity)
 		}
@@ -221,7 +222,7 @@ func TestModelFilterAndPhaseStepRoundTrip(t *testing.T) {
 // read: no filter means gaussian with a rise time and none without, no
 // phase step means 0, and the recorded figures are reproduced.
 func TestModelWithoutFilterFields(t *testing.T) {
-	for _, m := range []waveform.ErrorModel{{}, {RiseTime: 2e-9}} {
+	for _, m := range []sim.ErrorModel{{}, {RiseTime: 2e-9}} {
 		f := testFile(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6), m)
 		doc := string(encode(t, f))
 		old := doc
@@ -239,10 +240,10 @@ func TestModelWithoutFilterFields(t *testing.T) {
 			t.Fatalf("rise time %g: a file without filter and phase step: %v", m.RiseTime, err)
 		}
 		gm := g.Verification.Model
-		if gm.Filter != waveform.GaussianFilter || gm.PhaseStep != 0 || gm.RiseTime != m.RiseTime {
+		if gm.Filter != sim.GaussianFilter || gm.PhaseStep != 0 || gm.RiseTime != m.RiseTime {
 			t.Errorf("rise time %g: read %+v", m.RiseTime, gm)
 		}
-		if v := wavetest.MustVerify(t, g.Waveform, gm); !v.Same(f.Verification) {
+		if v := wavetest.Must(sim.Verify(g.Waveform, gm))(t); !v.Same(f.Verification) {
 			t.Errorf("rise time %g: re-verification differs", m.RiseTime)
 		}
 		// Written again, the file carries the fields.
@@ -254,17 +255,17 @@ func TestModelWithoutFilterFields(t *testing.T) {
 
 // Same compares the filter (when there is one) and the phase step.
 func TestSameModelFields(t *testing.T) {
-	base := waveform.Verification{Model: waveform.ErrorModel{RiseTime: 2e-9, PhaseStep: 0.01}, Adiabaticity: math.NaN()}
+	base := sim.Verification{Model: sim.ErrorModel{RiseTime: 2e-9, PhaseStep: 0.01}, Adiabaticity: math.NaN()}
 	for _, c := range []struct {
 		name string
-		edit func(*waveform.ErrorModel)
+		edit func(*sim.ErrorModel)
 		same bool
 	}{
-		{"identical", func(m *waveform.ErrorModel) {}, true},
-		{"filter kind", func(m *waveform.ErrorModel) { m.Filter = waveform.FirstOrderFilter }, false},
-		{"phase step ulp", func(m *waveform.ErrorModel) { m.PhaseStep = math.Nextafter(m.PhaseStep, 1) }, false},
-		{"no phase step", func(m *waveform.ErrorModel) { m.PhaseStep = 0 }, false},
-		{"kind without rise time", func(m *waveform.ErrorModel) { m.RiseTime = 0; m.Filter = waveform.FirstOrderFilter }, false},
+		{"identical", func(m *sim.ErrorModel) {}, true},
+		{"filter kind", func(m *sim.ErrorModel) { m.Filter = sim.FirstOrderFilter }, false},
+		{"phase step ulp", func(m *sim.ErrorModel) { m.PhaseStep = math.Nextafter(m.PhaseStep, 1) }, false},
+		{"no phase step", func(m *sim.ErrorModel) { m.PhaseStep = 0 }, false},
+		{"kind without rise time", func(m *sim.ErrorModel) { m.RiseTime = 0; m.Filter = sim.FirstOrderFilter }, false},
 	} {
 		o := base
 		c.edit(&o.Model)
@@ -272,8 +273,8 @@ func TestSameModelFields(t *testing.T) {
 			t.Errorf("%s: Same = %v", c.name, got)
 		}
 	}
-	a := waveform.Verification{Model: waveform.ErrorModel{Filter: waveform.FirstOrderFilter}, Adiabaticity: math.NaN()}
-	b := waveform.Verification{Model: waveform.ErrorModel{}, Adiabaticity: math.NaN()}
+	a := sim.Verification{Model: sim.ErrorModel{Filter: sim.FirstOrderFilter}, Adiabaticity: math.NaN()}
+	b := sim.Verification{Model: sim.ErrorModel{}, Adiabaticity: math.NaN()}
 	if !a.Same(&b) {
 		t.Error("a filter kind without a rise time (filter none) is not the Same as none")
 	}
@@ -281,12 +282,12 @@ func TestSameModelFields(t *testing.T) {
 
 // A cyclic gate has no adiabaticity (NaN); Same still matches it.
 func TestSameWithoutAdiabaticity(t *testing.T) {
-	f := testFile(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6), waveform.ErrorModel{})
+	f := testFile(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6), sim.ErrorModel{})
 	g, err := ReadWaveform(bytes.NewReader(encode(t, f)), "lambda.json")
 	if err != nil {
 		t.Fatal(err)
 	}
-	v := wavetest.MustVerify(t, g.Waveform, g.Verification.Model)
+	v := wavetest.Must(sim.Verify(g.Waveform, g.Verification.Model))(t)
 	if !math.IsNaN(v.Adiabaticity) || !v.Same(g.Verification) || !v.Same(f.Verification) {
 		t.Errorf("re-verification of a cyclic gate differs")
 	}
@@ -298,8 +299,8 @@ func TestSameWithoutAdiabaticity(t *testing.T) {
 
 // Same plan ⇒ byte-identical files.
 func TestDeterministic(t *testing.T) {
-	a := encode(t, testFile(t, wavetest.TripodPlan(math.Pi/4, 0.05), wavetest.Hardware(3, 10e6), waveform.ErrorModel{}))
-	b := encode(t, testFile(t, wavetest.TripodPlan(math.Pi/4, 0.05), wavetest.Hardware(3, 10e6), waveform.ErrorModel{}))
+	a := encode(t, testFile(t, wavetest.TripodPlan(math.Pi/4, 0.05), wavetest.Hardware(3, 10e6), sim.ErrorModel{}))
+	b := encode(t, testFile(t, wavetest.TripodPlan(math.Pi/4, 0.05), wavetest.Hardware(3, 10e6), sim.ErrorModel{}))
 	if !bytes.Equal(a, b) {
 		t.Error("two builds of the same plan differ")
 	}
@@ -339,7 +340,7 @@ func TestLoopFileRoundTrip(t *testing.T) {
 		t.Errorf("holonomy of the read loop off by %g", d)
 	}
 	w := wavetest.MustBuild(t, g.Plan(0.05, 0), wavetest.Hardware(3, 10e6))
-	if v := wavetest.MustVerify(t, w, waveform.ErrorModel{}); v.Fidelity < 0.9999 {
+	if v := wavetest.Must(sim.Verify(w, sim.ErrorModel{}))(t); v.Fidelity < 0.9999 {
 		t.Errorf("gate from the loop file: F = %.8f", v.Fidelity)
 	}
 	// A cyclic segment is one point with its area.
@@ -420,8 +421,8 @@ func TestCSV(t *testing.T) {
 // Bad waveform files: each gets a *FileError naming the file and the
 // offending place.
 func TestReadWaveformErrors(t *testing.T) {
-	good := string(encode(t, testFile(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6), waveform.ErrorModel{})))
-	f := testFile(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6), waveform.ErrorModel{})
+	good := string(encode(t, testFile(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6), sim.ErrorModel{})))
+	f := testFile(t, wavetest.LambdaPlan(math.Pi/4, 0, wavetest.Hadamard()), wavetest.Hardware(2, 10e6), sim.ErrorModel{})
 	f.Waveform.I[1] = f.Waveform.I[1][:10]
 	short := string(encode(t, f))
 	cases := []struct{ name, doc, ptr, msg string }{
@@ -452,25 +453,38 @@ func TestReadWaveformErrors(t *testing.T) {
   }`, `"pass": false
   }`, 1), "/verification/pass", "the checks say true"},
 	}
-	for _, c := range cases {
-		_, err := ReadWaveform(strings.NewReader(c.doc), "bad.json")
-		var fe *FileError
-		if !errors.As(err, &fe) {
-			t.Errorf("%s: error %v is not a *FileError", c.name, err)
-			continue
-		}
-		if fe.File != "bad.json" || !strings.HasPrefix(fe.Pointer, c.ptr) || !strings.Contains(fe.Msg, c.msg) {
-			t.Errorf("%s: got %q; want pointer %q and %q", c.name, err, c.ptr, c.msg)
-		}
-		t.Logf("%s: %v", c.name, err)
-	}
 	// Non-unitary target with a valid shape.
 	nu := strings.Replace(good, `[0.7071067811865476,0.7071067811865476]`, `[0.9,0.7071067811865476]`, 1)
 	if nu == good {
 		t.Fatal("target not found in the file")
 	}
-	if _, err := ReadWaveform(strings.NewReader(nu), "bad.json"); err == nil || !strings.Contains(err.Error(), "/target: target is not unitary") {
-		t.Errorf("non-unitary target: %v", err)
+	cases = append(cases, struct{ name, doc, ptr, msg string }{"non-unitary target", nu, "/target", "target is not unitary"})
+	kinds := map[string]error{
+		"empty": ErrSyntax, "blank": ErrSyntax, "not JSON": ErrSyntax, "trailing data": ErrSyntax, "NaN": ErrSyntax,
+		"other format": ErrFormat, "loop file": ErrFormat, "version 2": ErrFormat,
+		"huge number": ErrOutOfBounds, "non-unitary target": ErrNotUnitary,
+		"samples mismatch": ErrInconsistent, "unknown level": ErrInconsistent, "self coupling": ErrInconsistent,
+		"edited code": ErrInconsistent, "filter without rise time": ErrInconsistent,
+		"rise time without filter": ErrInconsistent, "pass flag": ErrInconsistent,
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			_, err := ReadWaveform(strings.NewReader(c.doc), "bad.json")
+			var fe *FileError
+			if !errors.As(err, &fe) {
+				t.Fatalf("error %v is not a *FileError", err)
+			}
+			if fe.File != "bad.json" || !strings.HasPrefix(fe.Pointer, c.ptr) || !strings.Contains(fe.Msg, c.msg) {
+				t.Errorf("got %q; want pointer %q and %q", err, c.ptr, c.msg)
+			}
+			want, ok := kinds[c.name]
+			if !ok {
+				want = ErrSchema
+			}
+			if !errors.Is(err, want) {
+				t.Errorf("got kind %v; want errors.Is(err, %v)", fe.Err, want)
+			}
+		})
 	}
 }
 
@@ -503,14 +517,25 @@ func TestReadLoopErrors(t *testing.T) {
 		{"cyclic points", strings.Replace(good, `"kind": "adiabatic"`, `"kind": "cyclic"`, 1), "/segments/0/points", "exactly one point"},
 		{"kind", strings.Replace(good, `"kind": "adiabatic"`, `"kind": "fast"`, 1), "/segments/0/kind", "does not match the schema"},
 	}
+	kinds := map[string]error{
+		"empty": ErrSyntax, "waveform file": ErrFormat, "version": ErrFormat,
+		"s out of range": ErrSchema, "kind": ErrSchema,
+	}
 	for _, c := range cases {
-		_, err := ReadLoop(strings.NewReader(c.doc), "bad-loop.json")
-		var fe *FileError
-		if !errors.As(err, &fe) || !strings.HasPrefix(fe.Pointer, c.ptr) || !strings.Contains(fe.Msg, c.msg) {
-			t.Errorf("%s: got %v; want pointer %q and %q", c.name, err, c.ptr, c.msg)
-			continue
-		}
-		t.Logf("%s: %v", c.name, err)
+		t.Run(c.name, func(t *testing.T) {
+			_, err := ReadLoop(strings.NewReader(c.doc), "bad-loop.json")
+			var fe *FileError
+			if !errors.As(err, &fe) || !strings.HasPrefix(fe.Pointer, c.ptr) || !strings.Contains(fe.Msg, c.msg) {
+				t.Fatalf("got %v; want pointer %q and %q", err, c.ptr, c.msg)
+			}
+			want, ok := kinds[c.name]
+			if !ok {
+				want = ErrInconsistent
+			}
+			if !errors.Is(err, want) {
+				t.Errorf("got kind %v; want errors.Is(err, %v)", fe.Err, want)
+			}
+		})
 	}
 }
 

@@ -3,17 +3,18 @@ package wavefile
 import (
 	"bytes"
 	"errors"
-	"github.com/loopgate/loopgate/waveform"
-	"github.com/loopgate/loopgate/waveform/internal/wavetest"
 	"io"
 	"math"
 	"strings"
 	"testing"
+
+	"github.com/loopgate/loopgate/waveform/internal/wavetest"
+	"github.com/loopgate/loopgate/waveform/sim"
 )
 
 // smallWaveformFile returns a valid waveform file of a few samples: a Λ
 // gate at 100 MS/s.
-func smallWaveformFile(tb testing.TB, m waveform.ErrorModel) []byte {
+func smallWaveformFile(tb testing.TB, m sim.ErrorModel) []byte {
 	hw := wavetest.Hardware(2, 10e6)
 	hw.SampleRate = 1e8
 	hw.Granularity = 4
@@ -59,10 +60,10 @@ func seeds(f *testing.F, doc []byte) {
 // back and re-reads to the same bytes; small files also verify without
 // panicking.
 func FuzzReadWaveform(f *testing.F) {
-	seeds(f, smallWaveformFile(f, waveform.ErrorModel{}))
-	seeds(f, smallWaveformFile(f, waveform.ErrorModel{AmplitudeError: 0.1, ChannelErrors: []float64{0.01, 0.02}, Decay: 1e5, Dephasing: 1e4, RiseTime: 3e-9}))
-	seeds(f, smallWaveformFile(f, waveform.ErrorModel{Filter: waveform.FirstOrderFilter, RiseTime: 3e-9, PhaseStep: 2 * math.Pi / 64}))
-	seeds(f, smallWaveformFile(f, waveform.ErrorModel{PhaseStep: math.Pi / 8}))
+	seeds(f, smallWaveformFile(f, sim.ErrorModel{}))
+	seeds(f, smallWaveformFile(f, sim.ErrorModel{AmplitudeError: 0.1, ChannelErrors: []float64{0.01, 0.02}, Decay: 1e5, Dephasing: 1e4, RiseTime: 3e-9}))
+	seeds(f, smallWaveformFile(f, sim.ErrorModel{Filter: sim.FirstOrderFilter, RiseTime: 3e-9, PhaseStep: 2 * math.Pi / 64}))
+	seeds(f, smallWaveformFile(f, sim.ErrorModel{PhaseStep: math.Pi / 8}))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		file := fuzzRoundTrip(t, data, ReadWaveform, (*File).WriteJSON)
 		if file == nil {
@@ -71,7 +72,7 @@ func FuzzReadWaveform(f *testing.F) {
 		// Small files must also verify without panicking (the slower
 		// density-matrix and filter paths are left to the unit tests).
 		if m := file.Verification.Model; file.Waveform.Len() <= 64 && m.Dephasing == 0 && m.RiseTime == 0 {
-			waveform.Verify(file.Waveform, m)
+			sim.Verify(file.Waveform, m)
 		}
 	})
 }

@@ -36,7 +36,7 @@ type LoopFile struct {
 // LoopSegment is one segment of a loop file.
 type LoopSegment struct {
 	// Kind is the segment's kind.
-	Kind waveform.Kind
+	Kind waveform.SegmentKind
 	// Area is the pulse area (rad) of a cyclic segment.
 	Area float64
 	// S holds the loop parameters of the points: S[0] = 0, strictly
@@ -68,7 +68,7 @@ func NewLoopFile(p *waveform.Plan, family string, params []float64, n int) (*Loo
 	for i, seg := range p.Segments {
 		ls := LoopSegment{Kind: seg.Kind, Area: 0}
 		m := n
-		if seg.Kind == waveform.Cyclic {
+		if seg.Kind == waveform.CyclicSegment {
 			m = 1
 			ls.Area = seg.Area
 		}
@@ -235,12 +235,12 @@ func ReadLoop(r io.Reader, name string) (*LoopFile, error) {
 	nch, nlev := len(sc.Channels), sc.Dim()
 	for i, s := range d.Segments {
 		p := fmt.Sprintf("/segments/%d", i)
-		kind, err := waveform.ParseKind(s.Kind)
+		kind, err := waveform.ParseSegmentKind(s.Kind)
 		if err != nil {
 			return nil, ferr(name, p+"/kind", "%v", err)
 		}
 		ls := LoopSegment{Kind: kind, Area: s.Area}
-		if kind == waveform.Cyclic {
+		if kind == waveform.CyclicSegment {
 			if len(s.Points) != 1 {
 				return nil, ferr(name, p+"/points", "a cyclic segment has exactly one point, not %d", len(s.Points))
 			}

@@ -5,7 +5,6 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
-	"github.com/loopgate/loopgate/waveform"
 	"io"
 	"math"
 	"sort"
@@ -14,6 +13,8 @@ import (
 
 	"github.com/loopgate/loopgate/holonomy"
 	"github.com/loopgate/loopgate/schemas"
+	"github.com/loopgate/loopgate/waveform"
+	"github.com/loopgate/loopgate/waveform/sim"
 	"github.com/xeipuuv/gojsonschema"
 )
 
@@ -28,7 +29,33 @@ type FileError struct {
 	Pointer string
 	// Msg says what is wrong and what was expected.
 	Msg string
+	// Err is the kind of problem, one of the sentinel errors ErrSyntax,
+	// ErrFormat, ErrSchema, ErrNotUnitary, ErrOutOfBounds or
+	// ErrInconsistent; errors.Is finds it through the FileError.
+	Err error
 }
+
+// Sentinel errors for FileError.Err.
+var (
+	// ErrSyntax: the file cannot be read, is empty or is not JSON.
+	ErrSyntax = errors.New("not a readable JSON file")
+	// ErrFormat: another file format, or a format version this build
+	// does not read.
+	ErrFormat = errors.New("wrong format or version")
+	// ErrSchema: the JSON does not follow the format's JSON Schema.
+	ErrSchema = errors.New("schema violation")
+	// ErrNotUnitary: a stored target gate is not unitary.
+	ErrNotUnitary = errors.New("not unitary")
+	// ErrOutOfBounds: a size or value outside its documented range.
+	ErrOutOfBounds = errors.New("out of bounds")
+	// ErrInconsistent: values that contradict each other (a DAC code that
+	// does not match its sample, counts that disagree, a check whose
+	// verdict does not follow from its numbers, an unknown name).
+	ErrInconsistent = errors.New("inconsistent values")
+)
+
+// Unwrap returns the sentinel error of the problem's kind.
+func (e *FileError) Unwrap() error { return e.Err }
 
 // Error formats the problem as "file: pointer: message".
 func (e *FileError) Error() string {
@@ -38,8 +65,14 @@ func (e *FileError) Error() string {
 	return e.File + ": " + e.Pointer + ": " + e.Msg
 }
 
+// ferr returns an ErrInconsistent FileError.
 func ferr(file, ptr, format string, a ...any) error {
-	return &FileError{File: file, Pointer: ptr, Msg: fmt.Sprintf(format, a...)}
+	return ferrKind(file, ptr, ErrInconsistent, format, a...)
+}
+
+// ferrKind returns a FileError of kind err (a sentinel).
+func ferrKind(file, ptr string, err error, format string, a ...any) error {
+	return &FileError{File: file, Pointer: ptr, Msg: fmt.Sprintf(format, a...), Err: err}
 }
 
 var (
@@ -69,13 +102,13 @@ func schemaFor(format string) (*gojsonschema.Schema, error) {
 func readDoc(r io.Reader, name, format string, dst any) error {
 	data, err := io.ReadAll(io.LimitReader(r, MaxFileBytes+1))
 	if err != nil {
-		return ferr(name, "", "cannot read: %v", err)
+		return ferrKind(name, "", ErrSyntax, "cannot read: %v", err)
 	}
 	if len(data) > MaxFileBytes {
-		return ferr(name, "", "file is larger than %d bytes, the limit for %s files", MaxFileBytes, format)
+		return ferrKind(name, "", ErrOutOfBounds, "file is larger than %d bytes, the limit for %s files", MaxFileBytes, format)
 	}
 	if len(bytes.TrimSpace(data)) == 0 {
-		return ferr(name, "", "empty file; expected a %s file (JSON)", format)
+		return ferrKind(name, "", ErrSyntax, "empty file; expected a %s file (JSON)", format)
 	}
 	if !json.Valid(data) {
 		var v any
@@ -83,9 +116,9 @@ func readDoc(r io.Reader, name, format string, dst any) error {
 		var se *json.SyntaxError
 		if errors.As(err, &se) {
 			line, col := lineCol(data, se.Offset)
-			return ferr(name, "", "not valid JSON at line %d, column %d: %v", line, col, se)
+			return ferrKind(name, "", ErrSyntax, "not valid JSON at line %d, column %d: %v", line, col, se)
 		}
-		return ferr(name, "", "not valid JSON: %v", err)
+		return ferrKind(name, "", ErrSyntax, "not valid JSON: %v", err)
 	}
 	var head struct {
 		Format  *string      `json:"format"`
@@ -93,10 +126,10 @@ func readDoc(r io.Reader, name, format string, dst any) error {
 	}
 	if json.Unmarshal(data, &head) == nil {
 		if head.Format != nil && *head.Format != format {
-			return ferr(name, "/format", "format is %q; expected %q", *head.Format, format)
+			return ferrKind(name, "/format", ErrFormat, "format is %q; expected %q", *head.Format, format)
 		}
 		if head.Version != nil && head.Version.String() != fmt.Sprint(FormatVersion) {
-			return ferr(name, "/version", "format version %s is not supported; this build reads version %d", head.Version.String(), FormatVersion)
+			return ferrKind(name, "/version", ErrFormat, "format version %s is not supported; this build reads version %d", head.Version.String(), FormatVersion)
 		}
 	}
 	sch, err := schemaFor(format)
@@ -115,7 +148,7 @@ func readDoc(r io.Reader, name, format string, dst any) error {
 	if err := dec.Decode(dst); err != nil {
 		var te *json.UnmarshalTypeError
 		if errors.As(err, &te) {
-			return ferr(name, "/"+strings.ReplaceAll(te.Field, ".", "/"), "value %s does not fit (%v)", te.Value, err)
+			return ferrKind(name, "/"+strings.ReplaceAll(te.Field, ".", "/"), ErrOutOfBounds, "value %s does not fit (%v)", te.Value, err)
 		}
 		return ferr(name, "", "cannot decode: %v", err)
 	}
@@ -144,7 +177,7 @@ func schemaError(name string, errs []gojsonschema.ResultError) error {
 	if len(items) > 1 {
 		msg += fmt.Sprintf(" (and %d more problems)", len(items)-1)
 	}
-	return &FileError{File: name, Pointer: items[0].ptr, Msg: msg}
+	return &FileError{File: name, Pointer: items[0].ptr, Msg: msg, Err: ErrSchema}
 }
 
 // pointer converts a gojsonschema context "(root).a.0.b" to "/a/0/b".
@@ -271,7 +304,7 @@ func parseTarget(name, ptr string, m *matDoc, d int) (*holonomy.Mat, error) {
 		}
 	}
 	if e := holonomy.UnitarityError(t); !(e <= 1e-6) {
-		return nil, ferr(name, ptr, "target is not unitary: ‖T†T − I‖ = %.3g exceeds the tolerance 1e-6", e)
+		return nil, ferrKind(name, ptr, ErrNotUnitary, "target is not unitary: ‖T†T − I‖ = %.3g exceeds the tolerance 1e-6", e)
 	}
 	return t, nil
 }
@@ -309,18 +342,38 @@ func (d *waveDoc) file(name string) (*File, error) {
 		CodeI: make([][]int32, nch), CodeQ: make([][]int32, nch),
 		Detuning: make([][]float64, nlev),
 	}
+	if err := d.channels(name, w); err != nil {
+		return nil, err
+	}
+	if err := d.levelDetunings(name, w); err != nil {
+		return nil, err
+	}
+	if err := d.segments(name, w); err != nil {
+		return nil, err
+	}
+	v, err := d.Verification.parse(name, nq, nch)
+	if err != nil {
+		return nil, err
+	}
+	return &File{ToolVersion: d.ToolVersion, SpecSHA256: d.SpecSHA256, Seed: d.Seed, Spec: d.Spec, Waveform: w, Verification: v}, nil
+}
+
+// channels checks the samples and DAC codes of every channel against the
+// scheme and the hardware and stores them in w.
+func (d *waveDoc) channels(name string, w *waveform.Waveform) error {
+	sc, hw, n := w.Scheme, &w.Hardware, d.Samples
 	mc := hw.MaxCode()
 	for c, ch := range d.Channels {
 		p := fmt.Sprintf("/channels/%d", c)
 		if ch.Name != sc.Channels[c].Name {
-			return nil, ferr(name, p+"/name", "channel %q where the scheme has %q", ch.Name, sc.Channels[c].Name)
+			return ferr(name, p+"/name", "channel %q where the scheme has %q", ch.Name, sc.Channels[c].Name)
 		}
 		for _, a := range []struct {
 			key string
 			n   int
 		}{{"i_hz", len(ch.I)}, {"q_hz", len(ch.Q)}, {"i_code", len(ch.CodeI)}, {"q_code", len(ch.CodeQ)}} {
 			if a.n != n {
-				return nil, ferr(name, p+"/"+a.key, "%d samples where the file declares %d", a.n, n)
+				return ferr(name, p+"/"+a.key, "%d samples where the file declares %d", a.n, n)
 			}
 		}
 		fs := hw.FullScale[c]
@@ -332,64 +385,73 @@ func (d *waveDoc) file(name string) (*File, error) {
 			}{{"i_code", ch.I[k], ch.CodeI[k]}, {"q_code", ch.Q[k], ch.CodeQ[k]}} {
 				want, err := waveform.DACCode(x.v, fs, mc)
 				if err != nil || want != x.code {
-					return nil, ferr(name, fmt.Sprintf("%s/%s/%d", p, x.key, k), "DAC code %d does not match the sample: round(x/full_scale × %g) = %d", x.code, mc, want)
+					return ferr(name, fmt.Sprintf("%s/%s/%d", p, x.key, k), "DAC code %d does not match the sample: round(x/full_scale × %g) = %d", x.code, mc, want)
 				}
 			}
 		}
 		w.I[c], w.Q[c], w.CodeI[c], w.CodeQ[c] = ch.I, ch.Q, ch.CodeI, ch.CodeQ
 	}
+	return nil
+}
+
+// levelDetunings checks the controlled detuning tracks and stores them in w.
+func (d *waveDoc) levelDetunings(name string, w *waveform.Waveform) error {
+	sc, n := w.Scheme, d.Samples
 	for i, t := range d.LevelDetunings {
 		p := fmt.Sprintf("/level_detunings/%d", i)
 		k := sc.LevelIndex(t.Level)
 		if k < 0 {
-			return nil, ferr(name, p+"/level", "level %q is not in the scheme", t.Level)
+			return ferr(name, p+"/level", "level %q is not in the scheme", t.Level)
 		}
 		if w.Detuning[k] != nil {
-			return nil, ferr(name, p+"/level", "level %q has two detuning tracks", t.Level)
+			return ferr(name, p+"/level", "level %q has two detuning tracks", t.Level)
 		}
 		if len(t.Hz) != n {
-			return nil, ferr(name, p+"/hz", "%d samples where the file declares %d", len(t.Hz), n)
+			return ferr(name, p+"/hz", "%d samples where the file declares %d", len(t.Hz), n)
 		}
 		w.Detuning[k] = t.Hz
 	}
+	return nil
+}
+
+// segments checks that the segments tile the samples from sample 0, with
+// only zero samples in the padding after them, and stores them in w.
+func (d *waveDoc) segments(name string, w *waveform.Waveform) error {
+	n := d.Samples
 	at := 0
 	for i, s := range d.Segments {
 		p := fmt.Sprintf("/segments/%d", i)
-		kind, err := waveform.ParseKind(s.Kind)
+		kind, err := waveform.ParseSegmentKind(s.Kind)
 		if err != nil {
-			return nil, ferr(name, p+"/kind", "%v", err)
+			return ferr(name, p+"/kind", "%v", err)
 		}
 		if s.First != at {
-			return nil, ferr(name, p+"/first_sample", "segment starts at sample %d; expected %d (segments are contiguous from sample 0)", s.First, at)
+			return ferr(name, p+"/first_sample", "segment starts at sample %d; expected %d (segments are contiguous from sample 0)", s.First, at)
 		}
 		if s.Samples > n-at {
-			return nil, ferr(name, p+"/samples", "segment of %d samples from sample %d runs past the end (%d samples)", s.Samples, at, n)
+			return ferr(name, p+"/samples", "segment of %d samples from sample %d runs past the end (%d samples)", s.Samples, at, n)
 		}
-		if kind == waveform.Adiabatic && (s.Ramp < 1 || 2*s.Ramp >= s.Samples) {
-			return nil, ferr(name, p+"/ramp_samples", "adiabatic segment of %d samples needs ramps of at least 1 and less than half of it each, has %d", s.Samples, s.Ramp)
+		if kind == waveform.AdiabaticSegment && (s.Ramp < 1 || 2*s.Ramp >= s.Samples) {
+			return ferr(name, p+"/ramp_samples", "adiabatic segment of %d samples needs ramps of at least 1 and less than half of it each, has %d", s.Samples, s.Ramp)
 		}
-		if kind == waveform.Cyclic && s.Ramp != 0 {
-			return nil, ferr(name, p+"/ramp_samples", "cyclic segments have no ramps")
+		if kind == waveform.CyclicSegment && s.Ramp != 0 {
+			return ferr(name, p+"/ramp_samples", "cyclic segments have no ramps")
 		}
-		w.Spans = append(w.Spans, waveform.Span{Kind: kind, First: s.First, Len: s.Samples, Ramp: s.Ramp, Area: s.Area, Amplitude: s.Amplitude, MinGap: s.MinGap})
+		w.Segments = append(w.Segments, waveform.SegmentTiming{Kind: kind, First: s.First, Len: s.Samples, Ramp: s.Ramp, Area: s.Area, Amplitude: s.Amplitude, MinGap: s.MinGap})
 		at += s.Samples
 	}
 	for c := range w.I {
 		for k := at; k < n; k++ {
 			if w.I[c][k] != 0 || w.Q[c][k] != 0 {
-				return nil, ferr(name, fmt.Sprintf("/channels/%d/i_hz/%d", c, k), "sample %d lies in the padding after the last segment but is not zero", k)
+				return ferr(name, fmt.Sprintf("/channels/%d/i_hz/%d", c, k), "sample %d lies in the padding after the last segment but is not zero", k)
 			}
 		}
 	}
-	v, err := d.Verification.parse(name, nq, nch)
-	if err != nil {
-		return nil, err
-	}
-	return &File{ToolVersion: d.ToolVersion, SpecSHA256: d.SpecSHA256, Seed: d.Seed, Spec: d.Spec, Waveform: w, Verification: v}, nil
+	return nil
 }
 
 // parse checks the verification document.
-func (d *verificationDoc) parse(name string, nq, nch int) (*waveform.Verification, error) {
+func (d *verificationDoc) parse(name string, nq, nch int) (*sim.Verification, error) {
 	p := "/verification"
 	if len(d.PeakAux) != nq || len(d.PeakExcited) != nq {
 		return nil, ferr(name, p+"/peak_aux_population", "%d and %d peak populations for %d qubit levels", len(d.PeakAux), len(d.PeakExcited), nq)
@@ -403,13 +465,13 @@ func (d *verificationDoc) parse(name string, nq, nch int) (*waveform.Verificatio
 		return nil, err
 	}
 	if !(m.PhaseStep >= 0 && m.PhaseStep <= math.Pi) {
-		return nil, ferr(name, p+"/model/phase_step_rad", "phase step %g rad; need 0 (exact phases) to π", m.PhaseStep)
+		return nil, ferrKind(name, p+"/model/phase_step_rad", ErrOutOfBounds, "phase step %g rad; need 0 (exact phases) to π", m.PhaseStep)
 	}
-	v := &waveform.Verification{
-		Model: waveform.ErrorModel{
+	v := &sim.Verification{
+		Model: sim.ErrorModel{
 			AmplitudeError: m.AmplitudeError, OnePhotonDetuning: m.OnePhotonDetuning, TwoPhotonDetuning: m.TwoPhotonDetuning,
 			Decay: m.Decay, Dephasing: m.Dephasing, RiseTime: m.RiseTime, Filter: filter, SubSteps: m.SubSteps,
-			PhaseStep: m.PhaseStep, Unquantized: !m.Quantized,
+			PhaseStep: m.PhaseStep, SkipDAC: !m.Quantized,
 		},
 		Fidelity: d.Fidelity, Leakage: d.Leakage, PeakAux: d.PeakAux, PeakExcited: d.PeakExcited,
 		Adiabaticity: math.NaN(),
@@ -421,8 +483,12 @@ func (d *verificationDoc) parse(name string, nq, nch int) (*waveform.Verificatio
 		v.Adiabaticity = *d.Adiabaticity
 	}
 	for i, c := range d.Checks {
-		lower := c.Bound == "min"
-		want := waveform.NewCheck(c.Name, c.Value, c.Limit, c.Unit, lower)
+		kind, channel := waveform.CheckKindOf(c.Name)
+		if kind == 0 || kind.Lower() != (c.Bound == "min") {
+			return nil, ferr(name, fmt.Sprintf("%s/checks/%d", p, i), "check %q with bound %q is not a check this format defines", c.Name, c.Bound)
+		}
+		want := waveform.NewCheck(kind, c.Name, c.Value, c.Limit, c.Unit)
+		want.Channel = channel
 		if want.Margin != c.Margin || want.Pass != c.Pass {
 			return nil, ferr(name, fmt.Sprintf("%s/checks/%d", p, i), "check %q: margin %g and pass %v do not follow from value %g and limit %g", c.Name, c.Margin, c.Pass, c.Value, c.Limit)
 		}
@@ -438,22 +504,22 @@ func (d *verificationDoc) parse(name string, nq, nch int) (*waveform.Verificatio
 // time and returns the filter kind. An absent filter (a file written
 // before the field existed) means gaussian with a rise time, none
 // without.
-func parseFilter(name, ptr string, m *modelDoc) (waveform.FilterKind, error) {
+func parseFilter(name, ptr string, m *modelDoc) (sim.FilterKind, error) {
 	switch m.Filter {
 	case "":
-		return waveform.GaussianFilter, nil
+		return sim.GaussianFilter, nil
 	case "none":
 		if m.RiseTime != 0 {
 			return 0, ferr(name, ptr+"/filter", "filter is none but rise_time_s is %g s; give gaussian or first-order, or a rise time of 0", m.RiseTime)
 		}
-		return waveform.GaussianFilter, nil
+		return sim.GaussianFilter, nil
 	}
-	var k waveform.FilterKind
+	var k sim.FilterKind
 	switch m.Filter {
-	case waveform.GaussianFilter.String():
-		k = waveform.GaussianFilter
-	case waveform.FirstOrderFilter.String():
-		k = waveform.FirstOrderFilter
+	case sim.GaussianFilter.String():
+		k = sim.GaussianFilter
+	case sim.FirstOrderFilter.String():
+		k = sim.FirstOrderFilter
 	default:
 		return 0, ferr(name, ptr+"/filter", "filter %q; expected none, gaussian or first-order", m.Filter)
 	}

@@ -3,12 +3,12 @@
 package wavetest
 
 import (
-	"github.com/loopgate/loopgate/waveform"
 	"math"
 	"math/cmplx"
 	"testing"
 
 	"github.com/loopgate/loopgate/holonomy"
+	"github.com/loopgate/loopgate/waveform"
 )
 
 // The hardware numbers below are invented for the tests (a generic AWG:
@@ -53,7 +53,7 @@ func TripodPlan(delta, alpha float64) *waveform.Plan {
 	return &waveform.Plan{
 		Scheme:       holonomy.Tripod(),
 		Target:       Rotation(delta),
-		Segments:     []waveform.Segment{{Kind: waveform.Adiabatic, Shape: SliceLoop(delta)}},
+		Segments:     []waveform.Segment{{Kind: waveform.AdiabaticSegment, Shape: SliceLoop(delta)}},
 		Adiabaticity: alpha,
 	}
 }
@@ -72,7 +72,7 @@ func LambdaPlan(theta, phi float64, target *holonomy.Mat) *waveform.Plan {
 	return &waveform.Plan{
 		Scheme: holonomy.Lambda(),
 		Target: target,
-		Segments: []waveform.Segment{{Kind: waveform.Cyclic, Area: 2 * math.Pi, Shape: func(s float64, p holonomy.Point) {
+		Segments: []waveform.Segment{{Kind: waveform.CyclicSegment, Area: 2 * math.Pi, Shape: func(s float64, p holonomy.Point) {
 			holonomy.LambdaPoint(p, 1, theta, phi)
 		}}},
 	}
@@ -94,20 +94,50 @@ func MustBuild(t testing.TB, p *waveform.Plan, hw waveform.Hardware) *waveform.W
 	return w
 }
 
-func MustVerify(t testing.TB, w *waveform.Waveform, m waveform.ErrorModel) *waveform.Verification {
-	t.Helper()
-	v, err := waveform.Verify(w, m)
-	if err != nil {
-		t.Fatalf("Verify: %v", err)
+// Must returns v after failing the test when err is not nil, for calls
+// such as wavetest.Must(sim.Verify(w, m))(t).
+func Must[T any](v T, err error) func(testing.TB) T {
+	return func(t testing.TB) T {
+		t.Helper()
+		if err != nil {
+			t.Fatal(err)
+		}
+		return v
 	}
-	return v
 }
 
-func FindCheck(v *waveform.Verification, name string) (waveform.Check, bool) {
-	for _, c := range v.Checks {
-		if c.Name == name {
+// FindCheck returns the check of kind k (on channel ch for per-channel
+// limits, "" otherwise).
+func FindCheck(checks []waveform.Check, k waveform.CheckKind, ch string) (waveform.Check, bool) {
+	for _, c := range checks {
+		if c.Kind == k && c.Channel == ch {
 			return c, true
 		}
 	}
 	return waveform.Check{}, false
+}
+
+// Gates of the robustness tests. The hardware numbers are invented demo
+// values (20 MHz Rabi limit, 1 GS/s, 14-bit DAC).
+
+// RobustHardware returns demo hardware for nch channels with Rabi limit
+// rabi (Hz): Hardware with a slower slew limit and longer gates allowed.
+func RobustHardware(nch int, rabi float64) waveform.Hardware {
+	h := Hardware(nch, rabi)
+	h.MaxSlew, h.MaxDuration = 1e15, 1e-3
+	return h
+}
+
+// RobustTripod builds the adiabatic tripod gate of SliceLoop(phi0) with
+// adiabaticity goal alpha and Rabi limit rabi (Hz).
+func RobustTripod(tb testing.TB, phi0, alpha, rabi float64) *waveform.Waveform {
+	tb.Helper()
+	return MustBuild(tb, TripodPlan(phi0, alpha), RobustHardware(3, rabi))
+}
+
+// RobustLambda builds the nonadiabatic Λ gate of LambdaPlan with target
+// NDotSigma(theta, phi) on RobustHardware(2, 20 MHz).
+func RobustLambda(tb testing.TB, theta, phi float64) *waveform.Waveform {
+	tb.Helper()
+	return MustBuild(tb, LambdaPlan(theta, phi, NDotSigma(theta, phi)), RobustHardware(2, 20e6))
 }
