@@ -1,0 +1,252 @@
+package holonomy
+
+import "math"
+
+// Closed forms for star-shaped coupling graphs.
+//
+// A Hamiltonian has the star form when every coupling touches one hub level
+// h and all other levels (the leaves) share one diagonal entry δ_g:
+//
+//	H = δ_g I + Δ|h⟩⟨h| + Σ_k (b_k|k⟩⟨h| + b̄_k|h⟩⟨k|),  b_k = ⟨k|H|h⟩,
+//
+// with Δ = H_hh − δ_g. The tripod, the Λ scheme and every N-pod driven on
+// two-photon resonance have it. The coupling graph is bipartite with one
+// level on one side, so the Morris–Shore transformation (Morris and Shore,
+// Phys. Rev. A 27, 906 (1983)) splits it into one two-level system — the hub
+// and the bright state |B⟩ = Σ_k b_k|k⟩/β, β = ‖b‖ — and n − 2 dark states
+// orthogonal to |B⟩ on the leaves, decoupled at energy δ_g. The spectrum of
+// the Jordan–Wielandt form [[0, C†], [C, 0]] is ±σ_i(C) plus zeros (Golub
+// and Van Loan, Matrix Computations, 4th ed., §8.6.1); here C = b is one
+// column, so with Δ = δ_g = 0 the eigenvalues are −β, 0 (n − 2 times), +β,
+// and β is the exact gap of the dark subspace.
+//
+// Both closed forms below need no eigensolver: the dark basis is the
+// complement of one vector (a complex Householder reflector, Golub and Van
+// Loan §5.1.13), and the exponential needs the 2×2 block only.
+
+// schemeHub returns the level that every channel of s touches, or −1 if
+// there is none (or s has fewer than three levels).
+func schemeHub(s *Scheme) int {
+	if len(s.Levels) < 3 || len(s.Channels) == 0 {
+		return -1
+	}
+	for _, cand := range [2]int{s.Channels[0].Upper, s.Channels[0].Lower} {
+		ok := true
+		for _, c := range s.Channels {
+			if c.Upper != cand && c.Lower != cand {
+				ok = false
+				break
+			}
+		}
+		if ok {
+			return cand
+		}
+	}
+	return -1
+}
+
+// darkBasis writes an orthonormal basis of the dark subspace of the n×n
+// star Hamiltonian h (full storage, hub level hub, zero diagonal) into
+// columns 1 … n−2 of the n×n matrix v, and returns the gap β = ‖b‖ to the
+// bright pair ±β. ok is false if the diagonal of h is not all zero (the
+// closed form does not apply). For β = 0 the gap is 0 and v is left as it
+// was. It does not allocate.
+//
+// The basis is the columns j ≠ p of the Householder reflector
+// P = I − w w†/(1 + |u_p|), w = u + e^{i arg u_p} e_p, u = b/β, p the
+// largest component of u: P is unitary and Hermitian and maps u to a
+// multiple of e_p, so its other columns are orthonormal and orthogonal to
+// u. Choosing the largest component keeps 1 + |u_p| ≥ 1 + 1/√(n−1).
+func darkBasis(h, v []complex128, n, hub int) (gap float64, ok bool) {
+	for i := 0; i < n; i++ {
+		if h[i*n+i] != 0 {
+			return 0, false
+		}
+	}
+	var b [MaxLevels]complex128
+	var b2, big float64
+	p := -1
+	for k := 0; k < n; k++ {
+		if k == hub {
+			continue
+		}
+		x := h[k*n+hub]
+		b[k] = x
+		m := sqmag(x)
+		b2 += m
+		if m > big {
+			big, p = m, k
+		}
+	}
+	if p < 0 {
+		return 0, true
+	}
+	beta := math.Sqrt(b2)
+	inv := 1 / beta
+	up := math.Sqrt(big) * inv // |u_p|
+	// w = u + α e_p with α = u_p/|u_p|: w_p = u_p (1 + 1/|u_p|).
+	var w [MaxLevels]complex128
+	for k := 0; k < n; k++ {
+		w[k] = complex(real(b[k])*inv, imag(b[k])*inv)
+	}
+	w[p] *= complex(1+1/up, 0)
+	f := 1 / (1 + up)
+	col := 1
+	for j := 0; j < n; j++ {
+		if j == hub || j == p {
+			continue
+		}
+		cw := complex(real(w[j])*f, -imag(w[j])*f) // conj(w_j)/(1+|u_p|)
+		for r := 0; r < n; r++ {
+			x := -w[r] * cw
+			if r == j {
+				x++
+			}
+			v[r*n+col] = x
+		}
+		v[hub*n+col] = 0
+		col++
+	}
+	return beta, true
+}
+
+// starStep sets u ← exp(−i h dt) u when the Hermitian n×n matrix h (upper
+// triangle and real diagonal read) has the star form, and reports whether it
+// did. It does not allocate.
+//
+// In the basis (|h⟩, |B⟩) the generator minus δ_g is [[Δ, β], [β, 0]] with
+// eigenvalues λ_a = Δ/2 + sgn(Δ)Ω and λ_b = −β²/λ_a, Ω = (Δ²/4 + β²)^{1/2}
+// (λ_b in this form has no cancellation), and eigenvectors ∝ (λ, β). With
+// E_λ = e^{−iλdt} − 1 = −2 sin(λdt/2)(sin(λdt/2) + i cos(λdt/2)) and
+// C_hh, C_hB, C_BB = Σ_λ E_λ (λ², λ, 1)/(λ² + β²), every column becomes
+//
+//	u_h ← g (u_h + C_hh u_h + C_hB x),  u_k ← g (u_k + b_k (C_hB u_h + C_BB x)),
+//
+// where x = Σ_k b̄_k u_k and g = e^{−iδ_g dt}; the dark part is untouched. No
+// term divides by β, so the form stays exact to rounding as β → 0.
+func starStep(u *Mat, h []complex128, n int, dt float64) bool {
+	hub := starHub(h, n)
+	if hub < 0 {
+		return false
+	}
+	var b [MaxLevels]complex128
+	var b2 float64
+	for k := 0; k < n; k++ {
+		switch {
+		case k < hub:
+			b[k] = h[k*n+hub]
+		case k > hub:
+			b[k] = conjg(h[hub*n+k])
+		}
+		b2 += sqmag(b[k])
+	}
+	leaf := 0
+	if hub == 0 {
+		leaf = 1
+	}
+	dg := real(h[leaf*n+leaf])
+	delta := real(h[hub*n+hub]) - dg
+	half := delta / 2
+	om := math.Sqrt(half*half + b2)
+	la := half + om
+	if delta < 0 {
+		la = half - om
+	}
+	var chh, chb, cbb complex128
+	if la != 0 {
+		lb := -b2 / la
+		sa, ca := math.Sincos(la * dt / 2)
+		sb, cb := -sa, ca // λ_b = −λ_a when Δ = 0
+		if delta != 0 {
+			sb, cb = math.Sincos(lb * dt / 2)
+		}
+		for i, l := range [2]float64{la, lb} {
+			s, c := sa, ca
+			if i == 1 {
+				s, c = sb, cb
+			}
+			den := l*l + b2
+			if den == 0 {
+				continue
+			}
+			f := -2 * s / den
+			e := complex(f*s, f*c)
+			chh += e * complex(l*l, 0)
+			chb += e * complex(l, 0)
+			cbb += e
+		}
+	}
+	cols, d := u.C, u.Data
+	for j := 0; j < cols; j++ {
+		y := d[hub*cols+j]
+		var x complex128
+		for k := 0; k < n; k++ {
+			if k != hub {
+				x += conjg(b[k]) * d[k*cols+j]
+			}
+		}
+		t := chb*y + cbb*x
+		for k := 0; k < n; k++ {
+			if k != hub {
+				d[k*cols+j] += b[k] * t
+			}
+		}
+		d[hub*cols+j] = y + chh*y + chb*x
+	}
+	if dg != 0 {
+		s, c := math.Sincos(dg * dt)
+		g := complex(c, -s)
+		for i := range d[:n*cols] {
+			d[i] *= g
+		}
+	}
+	return true
+}
+
+// starHub returns the hub of the Hermitian n×n matrix h (upper triangle and
+// real diagonal read) if h has the star form with at least one coupling,
+// else −1.
+func starHub(h []complex128, n int) int {
+	i0, j0 := -1, -1
+	for i := 0; i < n && i0 < 0; i++ {
+		for j := i + 1; j < n; j++ {
+			if h[i*n+j] != 0 {
+				i0, j0 = i, j
+				break
+			}
+		}
+	}
+	if i0 < 0 {
+		return -1
+	}
+	for _, hub := range [2]int{i0, j0} {
+		if isStar(h, n, hub) {
+			return hub
+		}
+	}
+	return -1
+}
+
+// isStar reports whether every non-zero coupling of h touches hub and all
+// other levels share one diagonal entry.
+func isStar(h []complex128, n, hub int) bool {
+	leaf := 0
+	if hub == 0 {
+		leaf = 1
+	}
+	dg := real(h[leaf*n+leaf])
+	for i := 0; i < n; i++ {
+		if i != hub && real(h[i*n+i]) != dg {
+			return false
+		}
+		if i == hub {
+			continue
+		}
+		for j := i + 1; j < n; j++ {
+			if j != hub && h[i*n+j] != 0 {
+				return false
+			}
+		}
+	}
+	return true
+}
