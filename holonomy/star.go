@@ -46,40 +46,28 @@ func schemeHub(s *Scheme) int {
 }
 
 // darkBasis writes an orthonormal basis of the dark subspace of the n×n
-// star Hamiltonian h (full storage, hub level hub, zero diagonal) into
-// columns 1 … n−2 of the n×n matrix v, and returns the gap β = ‖b‖ to the
-// bright pair ±β. ok is false if the diagonal of h is not all zero (the
-// closed form does not apply). For β = 0 the gap is 0 and v is left as it
-// was. It does not allocate.
+// star Hamiltonian with hub level hub, zero diagonal and couplings
+// b_k = ⟨k|H|hub⟩ (b_hub = 0), into columns 1 … n−2 of the n×n matrix v, and
+// returns the gap β = ‖b‖ to the bright pair ±β. For β = 0 the gap is 0 and
+// v is left as it was. It does not allocate.
 //
 // The basis is the columns j ≠ p of the Householder reflector
 // P = I − w w†/(1 + |u_p|), w = u + e^{i arg u_p} e_p, u = b/β, p the
 // largest component of u: P is unitary and Hermitian and maps u to a
 // multiple of e_p, so its other columns are orthonormal and orthogonal to
 // u. Choosing the largest component keeps 1 + |u_p| ≥ 1 + 1/√(n−1).
-func darkBasis(h, v []complex128, n, hub int) (gap float64, ok bool) {
-	for i := 0; i < n; i++ {
-		if h[i*n+i] != 0 {
-			return 0, false
-		}
-	}
-	var b [MaxLevels]complex128
+func darkBasis(b *[MaxLevels]complex128, v []complex128, n, hub int) float64 {
 	var b2, big float64
 	p := -1
 	for k := 0; k < n; k++ {
-		if k == hub {
-			continue
-		}
-		x := h[k*n+hub]
-		b[k] = x
-		m := sqmag(x)
+		m := sqmag(b[k])
 		b2 += m
 		if m > big {
 			big, p = m, k
 		}
 	}
 	if p < 0 {
-		return 0, true
+		return 0
 	}
 	beta := math.Sqrt(b2)
 	inv := 1 / beta
@@ -98,16 +86,37 @@ func darkBasis(h, v []complex128, n, hub int) (gap float64, ok bool) {
 		}
 		cw := complex(real(w[j])*f, -imag(w[j])*f) // conj(w_j)/(1+|u_p|)
 		for r := 0; r < n; r++ {
-			x := -w[r] * cw
-			if r == j {
-				x++
-			}
-			v[r*n+col] = x
+			v[r*n+col] = -w[r] * cw
 		}
-		v[hub*n+col] = 0
+		v[j*n+col]++
 		col++
 	}
-	return beta, true
+	return beta
+}
+
+// starCouplings writes b_k = ⟨k|H(p)|hub⟩ of the star scheme s at point p
+// into b (b_hub = 0), with the arithmetic of Scheme.Hamiltonian, and reports
+// whether the diagonal of H(p) is zero (static plus controlled detunings).
+func starCouplings(s *Scheme, p Point, hub int, b *[MaxLevels]complex128) bool {
+	for k, l := range s.Levels {
+		d := l.Detuning
+		if p.Detuning != nil {
+			d += p.Detuning[k]
+		}
+		if d != 0 {
+			return false
+		}
+	}
+	clear(b[:len(s.Levels)])
+	for c, ch := range s.Channels {
+		v := p.Drive[c] * complex(ch.Factor/2, 0)
+		if ch.Lower == hub {
+			b[ch.Upper] += v // ⟨upper|H|lower⟩ = v
+		} else {
+			b[ch.Lower] += conjg(v)
+		}
+	}
+	return true
 }
 
 // starStep sets u ← exp(−i h dt) u when the Hermitian n×n matrix h (upper

@@ -96,8 +96,10 @@ type Wilson struct {
 	// under a small two-photon detuning), set GapTol above the splitting.
 	GapTol float64
 
-	hub    int  // hub level of a star scheme, else −1
-	noFast bool // tests: always take the general path
+	hub    int                   // hub level of a star scheme, else −1
+	b      [MaxLevels]complex128 // star couplings at the current point
+	noFast bool                  // tests: always take the general path
+	fast   bool                  // the last pass used the closed-form dark basis
 
 	s   *Scheme
 	err error // invalid scheme
@@ -183,20 +185,29 @@ func (w *Wilson) Loop(loop Loop, n int, dst *Mat) (Gap, error) {
 
 // eval writes H(loop(s)) into h.
 func (w *Wilson) eval(loop Loop, s float64, h *Mat) error {
+	if err := w.point(loop, s); err != nil {
+		return err
+	}
+	w.s.Hamiltonian(h, w.p)
+	return nil
+}
+
+// point sets w.p to loop(s) and checks that it is finite.
+func (w *Wilson) point(loop Loop, s float64) error {
 	clear(w.p.Drive)
 	clear(w.p.Detuning)
 	loop(s, w.p)
+	// x − x is 0 for finite x and NaN for ±Inf and NaN.
+	var z float64
 	for _, d := range w.p.Drive {
-		if !finite(real(d)) || !finite(imag(d)) {
-			return w.badPoint(s)
-		}
+		z += (real(d) - real(d)) + (imag(d) - imag(d))
 	}
 	for _, d := range w.p.Detuning {
-		if !finite(d) {
-			return w.badPoint(s)
-		}
+		z += d - d
 	}
-	w.s.Hamiltonian(h, w.p)
+	if z != 0 {
+		return w.badPoint(s)
+	}
 	return nil
 }
 
@@ -214,9 +225,11 @@ func (w *Wilson) badPoint(s float64) error {
 // eigensolver step. If a later sample has a non-zero diagonal (a detuning),
 // the pass starts again on the general path.
 func (w *Wilson) pass(loop Loop, n, ns int) (Gap, error) {
-	g, ok, err := w.sweep(loop, n, ns, !w.noFast && w.hub >= 0)
+	w.fast = !w.noFast && w.hub >= 0
+	g, ok, err := w.sweep(loop, n, ns)
 	if !ok {
-		g, _, err = w.sweep(loop, n, ns, false)
+		w.fast = false
+		g, _, err = w.sweep(loop, n, ns)
 	}
 	return g, err
 }
@@ -271,26 +284,29 @@ func (w *Wilson) darkChosen() bool {
 	return true
 }
 
-// sweep is one pass, with the closed-form dark basis if fast and the
-// working subspace allows it; ok is false if it must be run again without.
-func (w *Wilson) sweep(loop Loop, n, ns int, fast bool) (gap Gap, ok bool, err error) {
+// sweep is one pass, with the closed-form dark basis if w.fast and the
+// working subspace allows it (w.fast then stays true); ok is false if it must be run again without.
+func (w *Wilson) sweep(loop Loop, n, ns int) (gap Gap, ok bool, err error) {
 	tr := w.tr
 	if err := w.start(loop, ns); err != nil {
 		return Gap{}, true, err
 	}
-	fast = fast && w.darkChosen()
+	w.fast = w.fast && w.darkChosen()
+	fast := w.fast
 	gap = Gap{Min: tr.gap(), At: 0}
 	for j := 1; j < n; j++ {
 		s := float64(j) / float64(n)
-		if err := w.eval(loop, s, tr.h); err != nil {
+		if err := w.point(loop, s); err != nil {
 			return gap, true, err
 		}
 		var g float64
 		if fast {
-			if g, ok = darkBasis(tr.h.Data, tr.v.Data, tr.n, w.hub); !ok {
+			if !starCouplings(w.s, w.p, w.hub, &w.b) {
 				return gap, false, nil
 			}
+			g = darkBasis(&w.b, tr.v.Data, tr.n, w.hub)
 		} else {
+			w.s.Hamiltonian(tr.h, w.p)
 			tr.warm()
 			g = tr.gap()
 		}
