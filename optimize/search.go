@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math/rand/v2"
+	"sync"
 
 	"github.com/loopgate/loopgate/holonomy"
 )
@@ -93,7 +94,8 @@ type Search struct {
 	// Penalty, if not nil, adds hardware penalties for parameters x (to
 	// evaluate them, set them on a clone of Shape). It must be
 	// deterministic, return 0 for acceptable loops and a positive amount
-	// otherwise, and not keep x.
+	// otherwise, and not keep x. The search calls it from one goroutine at
+	// a time (its restarts run concurrently, with the calls serialised).
 	Penalty func(x []float64) float64
 	// InitialScale is the half-width of the uniform distribution of the
 	// random starting parameters; zero means 1.
@@ -147,6 +149,7 @@ type Result struct {
 type searchConfig struct {
 	restarts, maxEvals, points, robustEvals int
 	target, lambda, scale, checkTol         float64
+	penalty                                 func([]float64) float64 // Search.Penalty, one call at a time
 }
 
 func (s *Search) config() searchConfig {
@@ -178,6 +181,16 @@ func (s *Search) config() searchConfig {
 	}
 	if c.checkTol <= 0 {
 		c.checkTol = 1e-7
+	}
+	if pen := s.Penalty; pen != nil {
+		// The search's workers share the caller's penalty, which need not
+		// be safe for concurrent use.
+		var mu sync.Mutex
+		c.penalty = func(x []float64) float64 {
+			mu.Lock()
+			defer mu.Unlock()
+			return pen(x)
+		}
 	}
 	return c
 }
@@ -238,7 +251,7 @@ func newObjective(s *Search, c searchConfig) *objective {
 	sh := s.Shape.Clone()
 	d := sh.Control().Dim()
 	o := &objective{shape: sh, w: holonomy.NewWilson(s.Scheme), u: holonomy.NewMat(k, k), target: s.Target,
-		n: c.points, lambda: c.lambda, penalty: s.Penalty, a: make([]float64, d), b: make([]float64, d)}
+		n: c.points, lambda: c.lambda, penalty: c.penalty, a: make([]float64, d), b: make([]float64, d)}
 	o.loop = sh.Point
 	o.chords = lengthPoints(sh)
 	return o
@@ -309,8 +322,15 @@ func (s *Search) Run(ctx context.Context) (*Result, error) {
 				x[i] = (2*rng.Float64() - 1) * scale
 			}
 		},
-		eval:       o.nominal,
 		needTarget: true,
+		// Restarts run on a worker pool, each worker with its own shape,
+		// Wilson workspace and objective (worker 0 uses o).
+		newEval: func(i int) evalFunc {
+			if i == 0 {
+				return o.nominal
+			}
+			return newObjective(s, c).nominal
+		},
 	}
 	if s.Start != nil {
 		ms.starts = [][]float64{s.Start}
