@@ -34,7 +34,7 @@ const failValue = 10
 // before those were known is run again with the right one), the best point
 // is the first best in that order, and the search ends after the first run
 // that meets the target; later runs started meanwhile are abandoned and
-// not counted. Each run depends only on its starting point and budget, and
+// not counted. The first run goes alone, since most searches end with it. Each run depends only on its starting point and budget, and
 // the starting points are drawn in order, so the result is the same for
 // any GOMAXPROCS and any timing.
 type multiStart struct {
@@ -212,7 +212,8 @@ func (m *multiStart) run(ctx context.Context) (msResult, error) {
 	return best, err
 }
 
-// combine hands out the runs (at most nw ahead of the last one combined) and
+// combine hands out the runs (at most nw ahead of the last one combined, none
+// ahead of the first) and
 // combines their results in order. spare evaluates a run again when its
 // budget was too large; it is free whenever that is needed (it is a
 // worker's evaluator only with one worker, which is then idle).
@@ -224,7 +225,13 @@ func (m *multiStart) combine(ctx context.Context, p *pool, nw int, spare evalFun
 		if remaining <= m.dim+1 {
 			break
 		}
-		for ; next < m.restarts && next < r+nw; next++ {
+		// The first run goes alone: most searches end with it, and a run
+		// started beside it would only take CPU time from other work.
+		window := nw
+		if r == 0 {
+			window = 1
+		}
+		for ; next < m.restarts && next < r+window; next++ {
 			x0 := make([]float64, m.dim)
 			if next < len(m.starts) {
 				copy(x0, m.starts[next])
