@@ -4,11 +4,12 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"github.com/loopgate/loopgate/design/spec"
+	"github.com/loopgate/loopgate/waveform/wavefile"
 	"math"
 	"math/cmplx"
 
 	"github.com/loopgate/loopgate/holonomy"
-	"github.com/loopgate/loopgate/optimize"
 	"github.com/loopgate/loopgate/waveform"
 )
 
@@ -85,13 +86,13 @@ func CheckLoopFile(ctx context.Context, path string, opt CheckOptions) (*LoopChe
 		return nil, err
 	}
 	defer r.Close()
-	lf, err := waveform.ReadLoop(r, path)
+	lf, err := wavefile.ReadLoop(r, path)
 	if err != nil {
 		return nil, &InputError{Err: err}
 	}
 	target, label := lf.Target, targetLabel(lf.Target)
 	if opt.Target != "" {
-		g, ok := LookupGate(opt.Target)
+		g, ok := spec.LookupGate(opt.Target)
 		if !ok {
 			return nil, &InputError{Err: fmt.Errorf("flag --target: unknown gate %q (see 'loopgate gates')", opt.Target)}
 		}
@@ -277,8 +278,8 @@ func adiabaticityProduct(sc *holonomy.Scheme, loop holonomy.Loop, n int) (float6
 // targetLabel names a target stored in a file: the named gate it equals up
 // to a global phase, or its matrix.
 func targetLabel(u *holonomy.Mat) string {
-	for _, g := range Gates() {
-		if u.R == 2 && optimize.Infidelity(u, g.Matrix()) < 1e-12 {
+	for _, g := range spec.Gates() {
+		if u.R == 2 && holonomy.BlockInfidelity(u, g.Matrix()) < 1e-12 {
 			return g.Symbol + " (" + g.Title + "), stored in the file"
 		}
 	}

@@ -4,6 +4,8 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"github.com/loopgate/loopgate/design/spec"
+	"github.com/loopgate/loopgate/waveform/wavefile"
 	"io"
 	"math"
 	"math/cmplx"
@@ -56,11 +58,11 @@ type Options struct {
 // outputs may be written before any work starts, and writes every file
 // atomically. The returned Outcome is non-nil whenever the work finished;
 // a failed check gives a *ChecksFailedError together with the Outcome.
-func Design(ctx context.Context, spec *Spec, opt Options) (*Outcome, error) {
-	if spec == nil || spec.Scheme == nil || spec.Target.U == nil {
+func Design(ctx context.Context, spc *spec.Spec, opt Options) (*Outcome, error) {
+	if spc == nil || spc.Scheme == nil || spc.Target.U == nil {
 		return nil, &InputError{Err: errors.New("design: empty spec")}
 	}
-	seed := spec.Search.Seed
+	seed := spc.Search.Seed
 	if opt.Seed != nil {
 		seed = *opt.Seed
 	}
@@ -79,69 +81,69 @@ func Design(ctx context.Context, spec *Spec, opt Options) (*Outcome, error) {
 		return nil, &OutputError{Err: err}
 	}
 
-	logf(opt.Log, "searching for a loop (%s, %s, seed %d)", spec.Method, spec.Search.Family, seed)
-	sol, err := solve(ctx, spec, seed)
+	logf(opt.Log, "searching for a loop (%s, %s, seed %d)", spc.Method, spc.Search.Family, seed)
+	sol, err := solve(ctx, spc, seed)
 	if err != nil {
 		return nil, err
 	}
 	logf(opt.Log, "holonomy infidelity %.2e after %d evaluations", sol.summary.Infidelity, sol.summary.Evaluations)
 
-	w, err := timeLoop(spec, sol.plan, opt.Log)
+	w, err := timeLoop(spc, sol.plan, opt.Log)
 	if err != nil {
 		return nil, err
 	}
-	logf(opt.Log, "sampled %d samples (%.4g s) at %s", w.Len(), w.Duration(), FormatQuantity(w.Hardware.SampleRate, SampleRate))
+	logf(opt.Log, "sampled %d samples (%.4g s) at %s", w.Len(), w.Duration(), spec.FormatQuantity(w.Hardware.SampleRate, spec.SampleRate))
 	for _, sp := range w.Spans {
 		if sp.Kind == waveform.Adiabatic && (sol.summary.MinGap == 0 || sp.MinGap < sol.summary.MinGap) {
 			sol.summary.MinGap = sp.MinGap
 		}
 	}
 
-	if err := hardwareError(spec, w); err != nil {
+	if err := hardwareError(spc, w); err != nil {
 		return nil, err
 	}
 	if r := sol.summary.Robust; r != nil {
-		if err := simulateEnsemble(spec, w, r); err != nil {
+		if err := simulateEnsemble(spc, w, r); err != nil {
 			return nil, err
 		}
 	}
-	model, sweeps := errorModelOf(spec), sweepsOf(spec, w.Duration())
+	model, sweeps := errorModelOf(spc), sweepsOf(spc, w.Duration())
 	if err := checkModels(w, model, sweeps); err != nil {
-		return nil, &InputError{Err: fmt.Errorf("spec %s: errors and sweeps: %w", spec.File, err)}
+		return nil, &InputError{Err: fmt.Errorf("spec %s: errors and sweeps: %w", spc.File, err)}
 	}
 	a, err := analyse(ctx, w, model, sweeps, !opt.NoSweeps, opt.Progress, opt.Log)
 	if err != nil {
 		return nil, err
 	}
 
-	file := &waveform.File{
+	file := &wavefile.File{
 		ToolVersion:  Version,
-		SpecSHA256:   spec.Hash(),
+		SpecSHA256:   spc.Hash(),
 		Seed:         seed,
-		Spec:         string(spec.Source),
+		Spec:         string(spc.Source),
 		Waveform:     w,
 		Verification: a.ideal,
 	}
-	lf, err := waveform.NewLoopFile(sol.plan, sol.family, sol.params, loopFilePoints)
+	lf, err := wavefile.NewLoopFile(sol.plan, sol.family, sol.params, loopFilePoints)
 	if err != nil {
 		return nil, fmt.Errorf("design: loop file: %w", err)
 	}
-	lf.ToolVersion, lf.SpecSHA256, lf.Seed = Version, spec.Hash(), seed
+	lf.ToolVersion, lf.SpecSHA256, lf.Seed = Version, spc.Hash(), seed
 
-	out := newOutcome("design", spec.File, spec.Title, spec.Target.Label, w, a)
-	out.Method = spec.Method.String()
+	out := newOutcome("design", spc.File, spc.Title, spc.Target.Label, w, a)
+	out.Method = spc.Method.String()
 	out.Seed = seed
-	out.SpecHash = spec.Hash()
+	out.SpecHash = spc.Hash()
 	out.Search = &sol.summary
 
 	writers := []func(io.Writer) error{
 		file.WriteJSON,
-		func(wr io.Writer) error { return waveform.WriteCSV(wr, w) },
-		func(wr io.Writer) error { return waveform.WriteNPY(wr, w) },
+		func(wr io.Writer) error { return wavefile.WriteCSV(wr, w) },
+		func(wr io.Writer) error { return wavefile.WriteNPY(wr, w) },
 		lf.WriteJSON,
 	}
 	if !opt.NoReport {
-		data := reportData(out, w, sol.plan, a, spec.Preset)
+		data := reportData(out, w, sol.plan, a, spc.Preset)
 		writers = append(writers, func(wr io.Writer) error { return writeReport(wr, data) })
 	}
 	if err := writeAll(ctx, paths, opt.Overwrite, writers); err != nil {
@@ -183,8 +185,8 @@ const (
 // waveform with the loosest α; when none is valid after maxTimingRounds,
 // the one with the best fidelity among those that fit the hardware (or
 // the first built); its checks tell the rest.
-func timeLoop(spec *Spec, plan *waveform.Plan, log io.Writer) (*waveform.Waveform, error) {
-	hw := hardwareOf(spec)
+func timeLoop(spc *spec.Spec, plan *waveform.Plan, log io.Writer) (*waveform.Waveform, error) {
+	hw := hardwareOf(spc)
 	adiabatic := false
 	for _, s := range plan.Segments {
 		adiabatic = adiabatic || s.Kind == waveform.Adiabatic
@@ -209,9 +211,9 @@ func timeLoop(spec *Spec, plan *waveform.Plan, log io.Writer) (*waveform.Wavefor
 		var le *waveform.LimitError
 		switch {
 		case err != nil && !errors.As(err, &le):
-			return nil, fmt.Errorf("spec %s: timing and sampling: %w", spec.File, err)
+			return nil, fmt.Errorf("spec %s: timing and sampling: %w", spc.File, err)
 		case err != nil && (!adiabatic || le.Check.Name != "sample count"):
-			return nil, &InfeasibleError{Err: fmt.Errorf("spec %s: hardware: %s", spec.File, describeCheck(le.Check))}
+			return nil, &InfeasibleError{Err: fmt.Errorf("spec %s: hardware: %s", spc.File, describeCheck(le.Check))}
 		case err != nil:
 			tooLong = math.Max(nanTo(tooLong, 0), alpha) // only the sample count can stop Build
 		default:
@@ -223,7 +225,7 @@ func timeLoop(spec *Spec, plan *waveform.Plan, log io.Writer) (*waveform.Wavefor
 			}
 			v, err := waveform.Verify(w, waveform.ErrorModel{})
 			if err != nil {
-				return nil, fmt.Errorf("spec %s: verification: %w", spec.File, err)
+				return nil, fmt.Errorf("spec %s: verification: %w", spc.File, err)
 			}
 			long, other := hardwareFailures(v)
 			switch {
@@ -237,7 +239,7 @@ func timeLoop(spec *Spec, plan *waveform.Plan, log io.Writer) (*waveform.Wavefor
 				}
 				if !other {
 					logf(log, "fidelity %.6f misses the timing target %.6g at adiabaticity goal %.3g (%s); re-timing",
-						v.Fidelity, target, alpha, FormatQuantity(w.Duration(), Time))
+						v.Fidelity, target, alpha, spec.FormatQuantity(w.Duration(), spec.Time))
 				}
 			default:
 				if math.IsNaN(validAlpha) || alpha > validAlpha {
@@ -284,7 +286,7 @@ func timeLoop(spec *Spec, plan *waveform.Plan, log io.Writer) (*waveform.Wavefor
 	case first != nil:
 		return first, nil
 	}
-	return nil, &InfeasibleError{Err: fmt.Errorf("spec %s: no adiabaticity goal up to %g gives a gate within the sample limit", spec.File, maxAdiabaticity)}
+	return nil, &InfeasibleError{Err: fmt.Errorf("spec %s: no adiabaticity goal up to %g gives a gate within the sample limit", spc.File, maxAdiabaticity)}
 }
 
 // hardwareFailures sorts the failed hardware checks of v: long reports a
@@ -314,7 +316,7 @@ func nanTo(x, v float64) float64 {
 // is written for it (a waveform that would overdrive the hardware is worse
 // than none). The error names every broken limit with the value needed,
 // the limit and the excess.
-func hardwareError(spec *Spec, w *waveform.Waveform) error {
+func hardwareError(spc *spec.Spec, w *waveform.Waveform) error {
 	var bad []string
 	for _, c := range w.HardwareChecks() {
 		if !c.Pass {
@@ -325,7 +327,7 @@ func hardwareError(spec *Spec, w *waveform.Waveform) error {
 		return nil
 	}
 	return &InfeasibleError{Err: fmt.Errorf("spec %s: the gate does not fit the hardware limits (no files written): %s",
-		spec.File, strings.Join(bad, "; "))}
+		spc.File, strings.Join(bad, "; "))}
 }
 
 // describeCheck says in words what a failed check needs and by how much it
@@ -386,42 +388,42 @@ type solution struct {
 }
 
 // solve runs the loop search for spec's method and builds the plan.
-func solve(ctx context.Context, spec *Spec, seed uint64) (*solution, error) {
+func solve(ctx context.Context, spc *spec.Spec, seed uint64) (*solution, error) {
 	// The search works at unit scale, where the peak Rabi frequency is 1:
 	// static detunings and detuning errors are expressed in units of the
 	// largest Rabi limit, the amplitude the timing stage aims at. The plan
 	// keeps the physical scheme.
 	ref := 0.0
-	for _, r := range spec.Hardware.MaxRabi {
+	for _, r := range spc.Hardware.MaxRabi {
 		ref = math.Max(ref, r)
 	}
-	sc, target := unitScheme(spec.Scheme, ref), spec.Target.U
+	sc, target := unitScheme(spc.Scheme, ref), spc.Target.U
 	var ens optimize.Ensemble
-	if spec.Search.Robust.Enabled() {
-		ens = robustEnsemble(spec, spec.Search.Robust.Amplitude, spec.Search.Robust.Detuning/ref)
+	if spc.Search.Robust.Enabled() {
+		ens = robustEnsemble(spc, spc.Search.Robust.Amplitude, spc.Search.Robust.Detuning/ref)
 	}
-	switch spec.Method {
-	case Nonadiabatic:
+	switch spc.Method {
+	case spec.Nonadiabatic:
 		s := &optimize.LambdaSearch{
 			Scheme:           sc,
 			Target:           target,
 			Form:             optimize.SingleLoop,
-			Restarts:         spec.Search.Restarts,
+			Restarts:         spc.Search.Restarts,
 			Seed:             seed,
-			TargetInfidelity: spec.Search.TargetInfidelity,
-			MaxEvaluations:   totalEvaluations(spec),
+			TargetInfidelity: spc.Search.TargetInfidelity,
+			MaxEvaluations:   totalEvaluations(spc),
 			FromClosedForm:   true,
 			Ensemble:         ens,
 		}
 		res, err := s.Run(ctx)
 		if err != nil {
-			return nil, searchError(spec, err)
+			return nil, searchError(spc, err)
 		}
 		lc, err := optimize.NewLambdaCoupling(sc)
 		if err != nil {
-			return nil, &InfeasibleError{Err: fmt.Errorf("spec %s: scheme: %w", spec.File, err)}
+			return nil, &InfeasibleError{Err: fmt.Errorf("spec %s: scheme: %w", spc.File, err)}
 		}
-		plan := &waveform.Plan{Scheme: spec.Scheme, Target: target}
+		plan := &waveform.Plan{Scheme: spc.Scheme, Target: target}
 		for _, g := range res.Segments {
 			g := g
 			plan.Segments = append(plan.Segments, waveform.Segment{
@@ -443,40 +445,40 @@ func solve(ctx context.Context, spec *Spec, seed uint64) (*solution, error) {
 	default:
 		var sp *optimize.Sphere
 		var err error
-		if isSpin(spec.Preset) {
+		if spec.IsSpinPreset(spc.Preset) {
 			sp, err = optimize.NewFieldSphere(sc)
 		} else {
 			sp, err = optimize.NewDriveSphere(sc, false)
 		}
 		if err != nil {
-			return nil, &InfeasibleError{Err: fmt.Errorf("spec %s: scheme: %w", spec.File, err)}
+			return nil, &InfeasibleError{Err: fmt.Errorf("spec %s: scheme: %w", spc.File, err)}
 		}
 		var shape optimize.Shape
-		family := spec.Search.Family.String()
-		switch spec.Search.Family {
-		case Polygon:
-			shape = optimize.NewPolygon(sp, spec.Search.Vertices)
+		family := spc.Search.Family.String()
+		switch spc.Search.Family {
+		case spec.Polygon:
+			shape = optimize.NewPolygon(sp, spc.Search.Vertices)
 		default:
-			shape = optimize.NewFourier(sp, spec.Search.Harmonics)
+			shape = optimize.NewFourier(sp, spc.Search.Harmonics)
 		}
 		s := &optimize.Search{
 			Scheme:           sc,
 			Target:           target,
 			Shape:            shape,
-			Penalty:          amplitudePenalty(sc, shape, spec.Hardware.MaxRabi),
-			Restarts:         spec.Search.Restarts,
+			Penalty:          amplitudePenalty(sc, shape, spc.Hardware.MaxRabi),
+			Restarts:         spc.Search.Restarts,
 			Seed:             seed,
-			TargetInfidelity: spec.Search.TargetInfidelity,
-			MaxEvaluations:   totalEvaluations(spec),
-			Points:           min(shape.Points(), spec.Search.LoopPoints),
+			TargetInfidelity: spc.Search.TargetInfidelity,
+			MaxEvaluations:   totalEvaluations(spc),
+			Points:           min(shape.Points(), spc.Search.LoopPoints),
 			Ensemble:         ens,
 		}
 		res, err := s.Run(ctx)
 		if err != nil {
-			return nil, searchError(spec, err)
+			return nil, searchError(spc, err)
 		}
 		plan := &waveform.Plan{
-			Scheme:   spec.Scheme,
+			Scheme:   spc.Scheme,
 			Target:   target,
 			Segments: []waveform.Segment{{Kind: waveform.Adiabatic, Shape: res.Loop}},
 		}
@@ -574,8 +576,8 @@ func amplitudePenalty(sc *holonomy.Scheme, shape optimize.Shape, maxRabi []float
 // simulateEnsemble evaluates the robust design's error ensemble on the
 // built waveform: the ideal model of the quantised waveform with each
 // member's common amplitude error and detuning error.
-func simulateEnsemble(spec *Spec, w *waveform.Waveform, r *RobustSummary) error {
-	rb := spec.Search.Robust
+func simulateEnsemble(spc *spec.Spec, w *waveform.Waveform, r *RobustSummary) error {
+	rb := spc.Search.Robust
 	sim := waveform.NewSimulator(w)
 	out := new(waveform.Outcome)
 	r.Built, r.BuiltMean, r.BuiltWorst = nil, 0, 0
@@ -585,13 +587,13 @@ func simulateEnsemble(spec *Spec, w *waveform.Waveform, r *RobustSummary) error 
 				continue
 			}
 			m := waveform.ErrorModel{AmplitudeError: e}
-			if rb.DetuningKind == TwoPhoton {
+			if rb.DetuningKind == spec.TwoPhoton {
 				m.TwoPhotonDetuning = d
 			} else {
 				m.OnePhotonDetuning = d
 			}
 			if err := sim.Run(m, out); err != nil {
-				return fmt.Errorf("spec %s: robust design: %w", spec.File, err)
+				return fmt.Errorf("spec %s: robust design: %w", spc.File, err)
 			}
 			inf := 1 - out.Fidelity
 			r.Built = append(r.Built, EnsembleMember{Amplitude: e, Detuning: d, Kind: rb.DetuningKind.String(), Infidelity: inf})
@@ -622,34 +624,34 @@ func unitScheme(sc *holonomy.Scheme, refHz float64) *holonomy.Scheme {
 // totalEvaluations is the search's whole evaluation budget: the spec's
 // search.evaluations per start times search.restarts, capped at
 // MaxTotalEvaluations.
-func totalEvaluations(spec *Spec) int {
-	n := spec.Search.Evaluations * max(1, spec.Search.Restarts)
-	return min(n, MaxTotalEvaluations)
+func totalEvaluations(spc *spec.Spec) int {
+	n := spc.Search.Evaluations * max(1, spc.Search.Restarts)
+	return min(n, spec.MaxTotalEvaluations)
 }
 
 // searchError classifies an error from the search stage.
-func searchError(spec *Spec, err error) error {
+func searchError(spc *spec.Spec, err error) error {
 	var ue *optimize.UnreachableError
 	switch {
 	case errors.Is(err, context.Canceled), errors.Is(err, context.DeadlineExceeded):
 		return err
 	case errors.As(err, &ue):
-		return &InfeasibleError{Err: fmt.Errorf("spec %s: target %s: %w", spec.File, spec.Target.Label, err)}
+		return &InfeasibleError{Err: fmt.Errorf("spec %s: target %s: %w", spc.File, spc.Target.Label, err)}
 	case errors.Is(err, optimize.ErrNotConverged):
 		return &InfeasibleError{Err: fmt.Errorf("spec %s: target %s: the search did not reach search.target_infidelity %g "+
 			"(raise search.restarts or search.evaluations, try another search.seed or loop family, or relax the target): %w",
-			spec.File, spec.Target.Label, spec.Search.TargetInfidelity, err)}
+			spc.File, spc.Target.Label, spc.Search.TargetInfidelity, err)}
 	}
-	return &InfeasibleError{Err: fmt.Errorf("spec %s: loop search: %w", spec.File, err)}
+	return &InfeasibleError{Err: fmt.Errorf("spec %s: loop search: %w", spc.File, err)}
 }
 
 // robustEnsemble is the 3×3 grid of amplitude errors ±amp and detuning
 // errors ±det (in units of the peak Rabi frequency, the search's scale) on
 // the levels the spec's robust detuning kind moves.
-func robustEnsemble(spec *Spec, amp, det float64) optimize.Ensemble {
-	sc := spec.Scheme
-	levels := spec.Excited
-	if spec.Search.Robust.DetuningKind == TwoPhoton && len(sc.Computational) > 1 {
+func robustEnsemble(spc *spec.Spec, amp, det float64) optimize.Ensemble {
+	sc := spc.Scheme
+	levels := spc.Excited
+	if spc.Search.Robust.DetuningKind == spec.TwoPhoton && len(sc.Computational) > 1 {
 		levels = sc.Computational[1:2]
 	}
 	var ens optimize.Ensemble
@@ -689,8 +691,8 @@ func robustSummary(r *optimize.RobustReport) *RobustSummary {
 
 // hardwareOf converts the spec's hardware section for package waveform.
 // The waveform stage has one slew limit for all channels: the smallest.
-func hardwareOf(spec *Spec) waveform.Hardware {
-	h := spec.Hardware
+func hardwareOf(spc *spec.Spec) waveform.Hardware {
+	h := spc.Hardware
 	slew := math.Inf(1)
 	for _, s := range h.MaxSlew {
 		slew = math.Min(slew, s)
@@ -710,8 +712,8 @@ func hardwareOf(spec *Spec) waveform.Hardware {
 
 // errorModelOf converts the spec's verification errors. The decay rate is
 // the largest Level.Decay among the excited levels.
-func errorModelOf(spec *Spec) waveform.ErrorModel {
-	e := spec.Errors
+func errorModelOf(spc *spec.Spec) waveform.ErrorModel {
+	e := spc.Errors
 	m := waveform.ErrorModel{
 		OnePhotonDetuning: e.OnePhoton,
 		TwoPhotonDetuning: e.TwoPhoton,
@@ -719,9 +721,9 @@ func errorModelOf(spec *Spec) waveform.ErrorModel {
 		Unquantized:       !e.Quantise,
 	}
 	switch e.Filter {
-	case GaussianFilter:
+	case spec.GaussianFilter:
 		m.RiseTime, m.Filter = e.RiseTime, waveform.GaussianFilter
-	case FirstOrderFilter:
+	case spec.FirstOrderFilter:
 		m.RiseTime, m.Filter = e.RiseTime, waveform.FirstOrderFilter
 	}
 	m.PhaseStep = e.PhaseStep
@@ -738,8 +740,8 @@ func errorModelOf(spec *Spec) waveform.ErrorModel {
 			m.ChannelErrors = append([]float64(nil), e.Amplitude...)
 		}
 	}
-	for _, k := range spec.Excited {
-		m.Decay = math.Max(m.Decay, spec.Scheme.Levels[k].Decay)
+	for _, k := range spc.Excited {
+		m.Decay = math.Max(m.Decay, spc.Scheme.Levels[k].Decay)
 	}
 	return m
 }
@@ -792,8 +794,8 @@ type sweepPlan struct {
 // of order 2πδ·duration, so this range holds the F ≥ 0.999 edge of the
 // geometric gate, and edges beyond it are found by the comparison's
 // outward search.
-func sweepsOf(spec *Spec, duration float64) sweepPlan {
-	s := spec.Sweeps
+func sweepsOf(spc *spec.Spec, duration float64) sweepPlan {
+	s := spc.Sweeps
 	amp := waveform.Range{Axis: waveform.AmplitudeAxis, Min: -s.Amplitude.Span, Max: s.Amplitude.Span, Points: s.Amplitude.Points}
 	det := waveform.Range{Axis: waveform.TwoPhotonAxis, Min: -s.Detuning.Span, Max: s.Detuning.Span, Points: s.Detuning.Points}
 	p := sweepPlan{
@@ -802,7 +804,7 @@ func sweepsOf(spec *Spec, duration float64) sweepPlan {
 		mapX:      waveform.Range{Axis: waveform.AmplitudeAxis, Min: amp.Min, Max: amp.Max, Points: s.MapAmplitude},
 		mapY:      waveform.Range{Axis: waveform.TwoPhotonAxis, Min: det.Min, Max: det.Max, Points: s.MapDetuning},
 	}
-	if s.DetuningKind == OnePhoton {
+	if s.DetuningKind == spec.OnePhoton {
 		one := det
 		one.Axis = waveform.OnePhotonAxis
 		p.oneExtra = &one

@@ -3,6 +3,7 @@ package design_test
 import (
 	"context"
 	"fmt"
+	"github.com/loopgate/loopgate/design/spec"
 	"os"
 
 	"github.com/loopgate/loopgate/design"
@@ -11,7 +12,7 @@ import (
 // ExampleDesign designs the nonadiabatic Λ Hadamard gate of a demo spec
 // into a temporary folder, without the robustness sweeps and the report.
 func ExampleDesign() {
-	spec, err := design.LoadSpec("../testdata/demo-lambda-hadamard.yaml")
+	spc, err := spec.LoadSpec("../testdata/demo-lambda-hadamard.yaml")
 	if err != nil {
 		fmt.Println(err)
 		return
@@ -22,7 +23,7 @@ func ExampleDesign() {
 		return
 	}
 	defer os.RemoveAll(dir)
-	out, err := design.Design(context.Background(), spec, design.Options{OutDir: dir, NoSweeps: true, NoReport: true})
+	out, err := design.Design(context.Background(), spc, design.Options{OutDir: dir, NoSweeps: true, NoReport: true})
 	if err != nil {
 		fmt.Println(err)
 		return

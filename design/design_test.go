@@ -4,6 +4,8 @@ import (
 	"bytes"
 	"context"
 	"errors"
+	"github.com/loopgate/loopgate/design/spec"
+	"github.com/loopgate/loopgate/waveform/wavefile"
 	"math"
 	"os"
 	"path/filepath"
@@ -28,13 +30,13 @@ var demoSpecs = []string{
 	"demo-lambda-hadamard.yaml", "demo-lambda-t.yaml", "demo-lambda-sx.yaml",
 }
 
-func loadDemo(t testing.TB, name string) *Spec {
+func loadDemo(t testing.TB, name string) *spec.Spec {
 	t.Helper()
-	spec, err := LoadSpec(filepath.Join("..", "testdata", name))
+	spc, err := spec.LoadSpec(filepath.Join("..", "testdata", name))
 	if err != nil {
 		t.Fatal(err)
 	}
-	return spec
+	return spc
 }
 
 // validate checks a file against one of the shipped JSON Schemas.
@@ -59,9 +61,9 @@ func validate(t *testing.T, schema []byte, path string) {
 func TestDesignDemoGates(t *testing.T) {
 	for _, name := range demoSpecs {
 		t.Run(name, func(t *testing.T) {
-			spec := loadDemo(t, name)
+			spc := loadDemo(t, name)
 			dir := t.TempDir()
-			out, err := Design(context.Background(), spec, Options{OutDir: dir, NoSweeps: true})
+			out, err := Design(context.Background(), spc, Options{OutDir: dir, NoSweeps: true})
 			if err != nil {
 				t.Fatalf("design: %v", err)
 			}
@@ -128,7 +130,7 @@ func equalFigures(a, b Figures) bool {
 
 // smallSweeps shrinks a demo spec's sweeps so that a full design (sweeps,
 // map, comparison and report) runs quickly in tests.
-func smallSweeps(t testing.TB, name string) *Spec {
+func smallSweeps(t testing.TB, name string) *spec.Spec {
 	t.Helper()
 	src, err := os.ReadFile(filepath.Join("..", "testdata", name))
 	if err != nil {
@@ -138,11 +140,11 @@ func smallSweeps(t testing.TB, name string) *Spec {
 	for _, r := range [][2]string{{"points: 41", "points: 7"}, {"amplitude_points: 41", "amplitude_points: 5"}, {"detuning_points: 41", "detuning_points: 5"}} {
 		s = strings.ReplaceAll(s, r[0], r[1])
 	}
-	spec, err := ParseSpec([]byte(s), name)
+	spc, err := spec.ParseSpec([]byte(s), name)
 	if err != nil {
 		t.Fatal(err)
 	}
-	return spec
+	return spc
 }
 
 // TestDesignDeterministic runs a full design twice, with one and with two
@@ -151,12 +153,12 @@ func TestDesignDeterministic(t *testing.T) {
 	if testing.Short() {
 		t.Skip("full design twice")
 	}
-	spec := smallSweeps(t, "demo-tripod-hadamard.yaml")
+	spc := smallSweeps(t, "demo-tripod-hadamard.yaml")
 	dirs := []string{t.TempDir(), t.TempDir()}
 	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(0))
 	for i, procs := range []int{1, 2} {
 		runtime.GOMAXPROCS(procs)
-		if _, err := Design(context.Background(), spec, Options{OutDir: dirs[i]}); err != nil {
+		if _, err := Design(context.Background(), spc, Options{OutDir: dirs[i]}); err != nil {
 			t.Fatalf("GOMAXPROCS=%d: %v", procs, err)
 		}
 	}
@@ -179,26 +181,26 @@ func TestDesignDeterministic(t *testing.T) {
 // work (naming the flag), that --overwrite replaces them, and that an
 // interrupted run leaves no file behind.
 func TestDesignOutputs(t *testing.T) {
-	spec := loadDemo(t, "demo-lambda-hadamard.yaml")
+	spc := loadDemo(t, "demo-lambda-hadamard.yaml")
 	dir := t.TempDir()
 	opt := Options{OutDir: dir, NoSweeps: true, NoReport: true}
-	if _, err := Design(context.Background(), spec, opt); err != nil {
+	if _, err := Design(context.Background(), spc, opt); err != nil {
 		t.Fatal(err)
 	}
-	_, err := Design(context.Background(), spec, opt)
+	_, err := Design(context.Background(), spc, opt)
 	var oe *OutputError
 	if !errors.As(err, &oe) || !strings.Contains(err.Error(), "--overwrite") || ExitCode(err) != ExitOutput {
 		t.Fatalf("second run: got %v (exit %d); want an output error naming --overwrite", err, ExitCode(err))
 	}
 	opt.Overwrite = true
-	if _, err := Design(context.Background(), spec, opt); err != nil {
+	if _, err := Design(context.Background(), spc, opt); err != nil {
 		t.Fatalf("with overwrite: %v", err)
 	}
 
 	empty := t.TempDir()
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
-	_, err = Design(ctx, spec, Options{OutDir: empty, NoSweeps: true})
+	_, err = Design(ctx, spc, Options{OutDir: empty, NoSweeps: true})
 	if !errors.Is(err, context.Canceled) || ExitCode(err) != ExitInterrupted {
 		t.Fatalf("cancelled run: got %v; want context.Canceled", err)
 	}
@@ -212,7 +214,7 @@ func TestDesignOutputs(t *testing.T) {
 // holonomy is diagonal (Berry, Proc. R. Soc. A 392, 45 (1984)), so the
 // design must refuse with the reason instead of returning a wrong gate.
 func TestDesignUnreachable(t *testing.T) {
-	src, err := StarterSpec("spin-1/2")
+	src, err := spec.StarterSpec("spin-1/2")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -223,11 +225,11 @@ func TestDesignUnreachable(t *testing.T) {
 	}
 	end := strings.Index(s[i:], "\n")
 	s = s[:i] + "gate: H" + s[i+end:]
-	spec, err := ParseSpec([]byte(s), "spin-h.yaml")
+	spc, err := spec.ParseSpec([]byte(s), "spin-h.yaml")
 	if err != nil {
 		t.Fatal(err)
 	}
-	_, err = Design(context.Background(), spec, Options{OutDir: t.TempDir(), NoSweeps: true, NoReport: true})
+	_, err = Design(context.Background(), spc, Options{OutDir: t.TempDir(), NoSweeps: true, NoReport: true})
 	var ie *InfeasibleError
 	if !errors.As(err, &ie) || ExitCode(err) != ExitInfeasible || !strings.Contains(err.Error(), "diagonal") {
 		t.Fatalf("got %v; want an infeasible-target error explaining that only diagonal gates are reachable", err)
@@ -264,11 +266,11 @@ func TestCheckLoopFile(t *testing.T) {
 // search, timing, verification, budget, sweeps, 41×41 map, comparison
 // and report.
 func benchDesign(b *testing.B, name string) {
-	spec := loadDemo(b, name)
+	spc := loadDemo(b, name)
 	dir := b.TempDir()
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
-		if _, err := Design(context.Background(), spec, Options{OutDir: dir, Overwrite: true}); err != nil {
+		if _, err := Design(context.Background(), spc, Options{OutDir: dir, Overwrite: true}); err != nil {
 			b.Fatal(err)
 		}
 	}
@@ -295,12 +297,12 @@ func TestDesignHardwareImpossible(t *testing.T) {
 	end := strings.Index(s[i:], "\n")
 	s = s[:i] + `max_duration: "60 ns"` + s[i+end:]
 	s = strings.Replace(s, `min_duration: "50 ns"`, `min_duration: "10 ns"`, 1)
-	spec, err := ParseSpec([]byte(s), "short.yaml")
+	spc, err := spec.ParseSpec([]byte(s), "short.yaml")
 	if err != nil {
 		t.Fatal(err)
 	}
 	dir := t.TempDir()
-	_, err = Design(context.Background(), spec, Options{OutDir: dir, NoSweeps: true})
+	_, err = Design(context.Background(), spc, Options{OutDir: dir, NoSweeps: true})
 	var ie *InfeasibleError
 	if !errors.As(err, &ie) || !strings.Contains(err.Error(), "duration") || !strings.Contains(err.Error(), "60 ns") {
 		t.Fatalf("got %v; want an infeasible error naming the duration limit", err)
@@ -314,17 +316,17 @@ func TestDesignHardwareImpossible(t *testing.T) {
 // TestStartersDesign designs the gate of every starter spec: what
 // `loopgate starter` writes must work as written.
 func TestStartersDesign(t *testing.T) {
-	for _, p := range StarterPresets() {
+	for _, p := range spec.StarterPresets() {
 		t.Run(p, func(t *testing.T) {
-			src, err := StarterSpec(p)
+			src, err := spec.StarterSpec(p)
 			if err != nil {
 				t.Fatal(err)
 			}
-			spec, err := ParseSpec(src, p+".yaml")
+			spc, err := spec.ParseSpec(src, p+".yaml")
 			if err != nil {
 				t.Fatal(err)
 			}
-			out, err := Design(context.Background(), spec, Options{OutDir: t.TempDir(), NoSweeps: true, NoReport: true})
+			out, err := Design(context.Background(), spc, Options{OutDir: t.TempDir(), NoSweeps: true, NoReport: true})
 			if err != nil {
 				t.Fatalf("design: %v", err)
 			}
@@ -376,12 +378,12 @@ func TestRobustDesign(t *testing.T) {
 	i := strings.Index(s, "search:")
 	j := i + strings.Index(s[i:], "\n\n")
 	s = s[:j] + "\n  robust:\n    amplitude: 0.05\n    detuning: \"200 kHz\"\n    detuning_kind: one-photon" + s[j:]
-	spec, err := ParseSpec([]byte(s), "robust.yaml")
+	spc, err := spec.ParseSpec([]byte(s), "robust.yaml")
 	if err != nil {
 		t.Fatal(err)
 	}
 	dir := t.TempDir()
-	out, err := Design(context.Background(), spec, Options{OutDir: dir, NoSweeps: true, NoReport: true})
+	out, err := Design(context.Background(), spc, Options{OutDir: dir, NoSweeps: true, NoReport: true})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -394,7 +396,7 @@ func TestRobustDesign(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer f.Close()
-	file, err := waveform.ReadWaveform(f, "waveform.json")
+	file, err := wavefile.ReadWaveform(f, "waveform.json")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -427,11 +429,11 @@ func TestDesignAbsurdRates(t *testing.T) {
 	}
 	end := strings.Index(s[i:], "\n")
 	s = s[:i] + `dephasing: "1e9 GHz"` + s[i+end:]
-	spec, err := ParseSpec([]byte(s), "absurd.yaml")
+	spc, err := spec.ParseSpec([]byte(s), "absurd.yaml")
 	if err != nil {
 		t.Fatal(err)
 	}
-	_, err = Design(context.Background(), spec, Options{OutDir: t.TempDir(), NoSweeps: true, NoReport: true})
+	_, err = Design(context.Background(), spc, Options{OutDir: t.TempDir(), NoSweeps: true, NoReport: true})
 	if ExitCode(err) != ExitBadInput || !strings.Contains(err.Error(), "absurd.yaml") || !strings.Contains(err.Error(), "per sample") {
 		t.Fatalf("got %v (exit %d); want bad input naming the file and the rate", err, ExitCode(err))
 	}

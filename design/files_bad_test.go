@@ -56,8 +56,8 @@ func TestBadFiles(t *testing.T) {
 
 // TestUnwritableOutput asks for an output folder that cannot be created.
 func TestUnwritableOutput(t *testing.T) {
-	spec := loadDemo(t, "demo-lambda-hadamard.yaml")
-	_, err := Design(context.Background(), spec, Options{OutDir: "/proc/loopgate-cannot-write-here", NoSweeps: true})
+	spc := loadDemo(t, "demo-lambda-hadamard.yaml")
+	_, err := Design(context.Background(), spc, Options{OutDir: "/proc/loopgate-cannot-write-here", NoSweeps: true})
 	if err == nil || ExitCode(err) != ExitOutput || !strings.Contains(err.Error(), "/proc/loopgate-cannot-write-here") {
 		t.Fatalf("got %v (exit %d); want an output error naming the folder", err, ExitCode(err))
 	}

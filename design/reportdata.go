@@ -1,6 +1,7 @@
 package design
 
 import (
+	"github.com/loopgate/loopgate/design/spec"
 	"io"
 	"math"
 	"path/filepath"
@@ -149,7 +150,7 @@ func loopDrawing(plan *waveform.Plan, preset string) *report.Loop {
 	for _, c := range sc.Channels {
 		l.Channels = append(l.Channels, c.Name)
 	}
-	spin := isSpin(preset)
+	spin := spec.IsSpinPreset(preset)
 	p := sc.NewPoint()
 	s := float64(sc.Dim()-1) / 2
 	for _, seg := range plan.Segments {

@@ -35,10 +35,3 @@ func Schema(name string) ([]byte, error) {
 	}
 	return nil, fmt.Errorf("unknown schema %q; known: %s", name, strings.Join(SchemaNames(), ", "))
 }
-
-// DemoSpecName names the built-in demo spec in messages; it is a copy of
-// the file with the same name under testdata/.
-const DemoSpecName = "demo-tripod-hadamard.yaml (built in)"
-
-// LoadDemoSpec parses the built-in demo spec.
-func LoadDemoSpec() (*Spec, error) { return ParseSpec(DemoSpec(), DemoSpecName) }

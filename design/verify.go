@@ -3,6 +3,8 @@ package design
 import (
 	"context"
 	"fmt"
+	"github.com/loopgate/loopgate/design/spec"
+	"github.com/loopgate/loopgate/waveform/wavefile"
 	"io"
 	"math"
 	"os"
@@ -27,11 +29,11 @@ type ErrorFlags struct {
 
 // apply parses the flags into m.
 func (f ErrorFlags) apply(m *waveform.ErrorModel) error {
-	set := func(flag, text string, dim Dimension, dst *float64) error {
+	set := func(flag, text string, dim spec.Dimension, dst *float64) error {
 		if text == "" {
 			return nil
 		}
-		v, err := ParseQuantity(text, dim)
+		v, err := spec.ParseQuantity(text, dim)
 		if err != nil {
 			return &InputError{Err: fmt.Errorf("flag --%s: %w", flag, err)}
 		}
@@ -40,22 +42,22 @@ func (f ErrorFlags) apply(m *waveform.ErrorModel) error {
 	}
 	for _, s := range []struct {
 		flag, text string
-		dim        Dimension
+		dim        spec.Dimension
 		dst        *float64
 	}{
-		{"amplitude-error", f.Amplitude, Number, &m.AmplitudeError},
-		{"one-photon-detuning", f.OnePhoton, Frequency, &m.OnePhotonDetuning},
-		{"two-photon-detuning", f.TwoPhoton, Frequency, &m.TwoPhotonDetuning},
-		{"decay", f.Decay, Rate, &m.Decay},
-		{"dephasing", f.Dephasing, Rate, &m.Dephasing},
-		{"rise-time", f.RiseTime, Time, &m.RiseTime},
+		{"amplitude-error", f.Amplitude, spec.Number, &m.AmplitudeError},
+		{"one-photon-detuning", f.OnePhoton, spec.Frequency, &m.OnePhotonDetuning},
+		{"two-photon-detuning", f.TwoPhoton, spec.Frequency, &m.TwoPhotonDetuning},
+		{"decay", f.Decay, spec.Rate, &m.Decay},
+		{"dephasing", f.Dephasing, spec.Rate, &m.Dephasing},
+		{"rise-time", f.RiseTime, spec.Time, &m.RiseTime},
 	} {
 		if err := set(s.flag, s.text, s.dim, s.dst); err != nil {
 			return err
 		}
 	}
 	if f.PhaseStep != "" {
-		v, err := ParseQuantity(f.PhaseStep, Angle)
+		v, err := spec.ParseQuantity(f.PhaseStep, spec.Angle)
 		if err != nil {
 			return &InputError{Err: fmt.Errorf("flag --phase-step: %w", err)}
 		}
@@ -114,7 +116,7 @@ func VerifyFile(ctx context.Context, path string, opt VerifyOptions) (*Outcome, 
 	if err != nil {
 		return nil, err
 	}
-	if f.Spec != "" && waveform.SpecHash([]byte(f.Spec)) != f.SpecSHA256 {
+	if f.Spec != "" && wavefile.SpecHash([]byte(f.Spec)) != f.SpecSHA256 {
 		return nil, &InputError{Err: fmt.Errorf("waveform %s: /spec: the spec text does not match /spec_sha256 (the file was edited)", path)}
 	}
 	if opt.Report != "" {
@@ -130,12 +132,12 @@ func VerifyFile(ctx context.Context, path string, opt VerifyOptions) (*Outcome, 
 	sp := defaultSweeps()
 	title, target, preset := "", targetLabel(w.Target), ""
 	if f.Spec != "" {
-		spec, err := ParseSpec([]byte(f.Spec), path+" (embedded spec)")
+		spc, err := spec.ParseSpec([]byte(f.Spec), path+" (embedded spec)")
 		if err != nil {
 			return nil, &InputError{Err: err}
 		}
-		model, sp = errorModelOf(spec), sweepsOf(spec, w.Duration())
-		title, target, preset = spec.Title, spec.Target.Label, spec.Preset
+		model, sp = errorModelOf(spc), sweepsOf(spc, w.Duration())
+		title, target, preset = spc.Title, spc.Target.Label, spc.Preset
 	}
 	_ = preset
 	if err := opt.Errors.apply(&model); err != nil {
@@ -172,13 +174,13 @@ func VerifyFile(ctx context.Context, path string, opt VerifyOptions) (*Outcome, 
 
 // readWaveformFile opens and reads a waveform file with clear messages
 // for a missing file, a directory or an empty file.
-func readWaveformFile(path string) (*waveform.File, error) {
+func readWaveformFile(path string) (*wavefile.File, error) {
 	r, err := openInput(path, "waveform file")
 	if err != nil {
 		return nil, err
 	}
 	defer r.Close()
-	f, err := waveform.ReadWaveform(r, path)
+	f, err := wavefile.ReadWaveform(r, path)
 	if err != nil {
 		return nil, &InputError{Err: err}
 	}

@@ -47,3 +47,28 @@ func GateFidelity(u *Mat, comp []int, target *Mat) (fid, leak float64) {
 	leak = 1 - norm2/fd
 	return fid, leak
 }
+
+// BlockInfidelity returns 1 − F for the k×k matrix u (a holonomy or the
+// computational block of a propagator) against the k×k unitary target, with
+// the average gate fidelity of Pedersen, Møller and Mølmer,
+// Phys. Lett. A 367, 47 (2007):
+//
+//	F = (Tr(M†M) + |Tr M|²) / (k(k+1)),  M = target†·u.
+//
+// It is GateFidelity with every level computational, written out for the
+// search loops. A global phase of u does not change F. It does not allocate.
+func BlockInfidelity(u, target *Mat) float64 {
+	if u.R != u.C || target.R != target.C || u.R != target.R {
+		panic(fmt.Sprintf("holonomy: BlockInfidelity: %d×%d against %d×%d", u.R, u.C, target.R, target.C))
+	}
+	k := u.R
+	// For unitary target, Tr(M†M) = ‖u‖²_F and Tr M = Σ conj(T_ij) u_ij.
+	var tr complex128
+	var norm float64
+	for i, v := range u.Data {
+		tr += cmplx.Conj(target.Data[i]) * v
+		norm += real(v)*real(v) + imag(v)*imag(v)
+	}
+	f := (norm + real(tr)*real(tr) + imag(tr)*imag(tr)) / float64(k*(k+1))
+	return 1 - f
+}

@@ -27,9 +27,11 @@ import (
 // e^{−γ_φ t}, the usual pure-dephasing rate γ_φ = 1/T_φ (equivalently
 // L = √(γ_φ/2) σ_z on the qubit). In components,
 //
-//	𝓛ρ = K ρ + ρ K† + D∘ρ,  K = −i(H − iΓ/2),  D_ij = −(γ_i + γ_j)(1 − δ_ij),
+//	𝓛ρ = K ρ + ρ K† + D∘ρ + Σ_jumps r ρ_kk |m⟩⟨m|,
+//	K = −i(H − iΓ/2),  D_ij = −(γ_i + γ_j)(1 − δ_ij),
 //
-// with ∘ the element-wise product.
+// with ∘ the element-wise product. With every Jump's rates summing to
+// Decay[From] the evolution is trace preserving.
 //
 // # Superoperators
 //
@@ -59,6 +61,9 @@ type Lindblad struct {
 	// Dephasing holds the pure dephasing rate γ_k ≥ 0 of every level in
 	// 1/s (nil: none), collapse operator √(2γ_k)|k⟩⟨k|.
 	Dephasing []float64
+	// Jumps holds the decay channels that return population to a
+	// modelled level (nil: none; all decay leaves the model).
+	Jumps []Jump
 
 	n                     int
 	k                     []complex128 // K δt for the current sub-step length
@@ -66,6 +71,17 @@ type Lindblad struct {
 	x, acc, term, next, t []complex128
 	h                     *Mat
 	subs                  int
+	jr                    []float64 // Jumps[i].Rate δt for the current sub-step
+}
+
+// Jump is one decay channel of a Lindblad that returns population to a
+// modelled level: collapse operator √Rate |To⟩⟨From|.
+type Jump struct {
+	// From and To are level indices; they must differ.
+	From, To int
+	// Rate is the transition rate in 1/s (≥ 0). It is part of, not in
+	// addition to, Decay[From].
+	Rate float64
 }
 
 // NewLindblad returns a workspace for n levels with the given decay and
@@ -115,6 +131,11 @@ func (l *Lindblad) check(h *Mat, what string) {
 			panic(fmt.Sprintf("holonomy: Lindblad.%s: level %d has decay %g and dephasing %g; rates must be non-negative", what, k, g, p))
 		}
 	}
+	for _, j := range l.Jumps {
+		if j.From < 0 || j.From >= n || j.To < 0 || j.To >= n || j.From == j.To || !(j.Rate >= 0) || math.IsInf(j.Rate, 0) {
+			panic(fmt.Sprintf("holonomy: Lindblad.%s: jump %d→%d at rate %g in %d levels", what, j.From, j.To, j.Rate, n))
+		}
+	}
 }
 
 // Generator writes into dst the n²×n² matrix of 𝓛 for the Hermitian
@@ -145,6 +166,9 @@ func (l *Lindblad) Generator(dst, h *Mat) {
 			dst.Data[row+i*n+j] += complex(l.d[i*n+j], 0)
 		}
 	}
+	for _, j := range l.Jumps {
+		dst.Data[(j.To*n+j.To)*N+j.From*n+j.From] += complex(j.Rate, 0)
+	}
 }
 
 // prepare fills K δt and D δt for a step dt, split into sub-steps when split
@@ -168,10 +192,30 @@ func (l *Lindblad) prepare(h *Mat, dt float64, split bool) {
 		l.k[i*n+i] -= complex(gi*dt/2, 0)
 	}
 	l.subs = 1
+	// The jumps' 1-norm: the largest total rate out of one level.
+	var jmax float64
+	if len(l.Jumps) > 0 {
+		if cap(l.jr) < len(l.Jumps) {
+			l.jr = make([]float64, len(l.Jumps)) // once per Jumps length
+		}
+		l.jr = l.jr[:len(l.Jumps)]
+		for i, j := range l.Jumps {
+			l.jr[i] = j.Rate * dt
+			var out float64
+			for _, o := range l.Jumps {
+				if o.From == j.From {
+					out += o.Rate * math.Abs(dt)
+				}
+			}
+			jmax = max(jmax, out)
+		}
+	} else {
+		l.jr = l.jr[:0]
+	}
 	if !split {
 		return
 	}
-	theta := 2*norm1Cols(l.k, n) + dmax
+	theta := 2*norm1Cols(l.k, n) + dmax + jmax
 	if theta > 1 {
 		s := math.Ceil(theta)
 		if s > 1<<30 || math.IsNaN(s) {
@@ -182,6 +226,9 @@ func (l *Lindblad) prepare(h *Mat, dt float64, split bool) {
 		for i := range l.k {
 			l.k[i] *= complex(f, 0)
 			l.d[i] *= f
+		}
+		for i := range l.jr {
+			l.jr[i] *= f
 		}
 	}
 }
@@ -198,6 +245,9 @@ func (l *Lindblad) apply(x []complex128) {
 			// next = (K·term + term·K† + D∘term)/k.
 			mulSq(next, l.k, term, n)
 			mulSqBH(t, term, l.k, n)
+			for i, j := range l.Jumps {
+				t[j.To*n+j.To] += rscale(l.jr[i], term[j.From*n+j.From])
+			}
 			f := 1 / float64(k)
 			var tn, an float64
 			for i, v := range next {

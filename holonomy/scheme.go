@@ -343,5 +343,3 @@ func signedHalf(twoM int) string {
 	}
 	return "0"
 }
-
-func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }

@@ -229,7 +229,7 @@ func (e *lambdaEval) score() (infid, leak float64) {
 	for _, v := range e.blk.Data {
 		norm += real(v)*real(v) + imag(v)*imag(v)
 	}
-	return Infidelity(e.blk, e.target), math.Max(0, 1-norm/float64(e.blk.R))
+	return holonomy.BlockInfidelity(e.blk, e.target), math.Max(0, 1-norm/float64(e.blk.R))
 }
 
 // LambdaClosedForm returns the segments that make the 2×2 unitary target

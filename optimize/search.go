@@ -276,7 +276,7 @@ func (o *objective) nominal(x []float64) (total, infid, pen float64) {
 	if _, err := o.w.Loop(o.loop, o.n, o.u); err != nil {
 		return failValue + l + p, 1, p
 	}
-	inf := Infidelity(o.u, o.target)
+	inf := holonomy.BlockInfidelity(o.u, o.target)
 	return inf + l + p, inf, p
 }
 
@@ -290,7 +290,7 @@ func (o *objective) robust(x []float64) (total, infid, pen float64) {
 			o.per[i] = 1
 			continue
 		}
-		o.per[i] = Infidelity(o.u, o.target)
+		o.per[i] = holonomy.BlockInfidelity(o.u, o.target)
 	}
 	mean, _ := meanMax(o.per)
 	return mean + l + p, mean, p
@@ -404,7 +404,7 @@ func (s *Search) check(o *objective, x []float64, c searchConfig) (*Result, erro
 		return nil, fmt.Errorf("optimize: checking the loop found: %w", err)
 	}
 	res := &Result{Params: sh.Params(), Shape: sh, Loop: sh.Point, U: chk.U, Check: chk, Points: o.n,
-		Infidelity: Infidelity(chk.U, s.Target), Length: Length(sh)}
+		Infidelity: holonomy.BlockInfidelity(chk.U, s.Target), Length: Length(sh)}
 	if s.Penalty != nil {
 		res.Penalty = s.Penalty(res.Params)
 	}
@@ -440,7 +440,7 @@ func (s *Search) robust(ctx context.Context, o *objective, x0 []float64, c searc
 		for i, m := range o.members {
 			out[i] = 1
 			if _, err := m.w.Loop(m.loop, 4*o.n, o.u); err == nil {
-				out[i] = Infidelity(o.u, o.target)
+				out[i] = holonomy.BlockInfidelity(o.u, o.target)
 			}
 		}
 		return out

@@ -32,7 +32,7 @@ func independentInfidelity(t *testing.T, sc *holonomy.Scheme, res *Result, targe
 	if _, err := holonomy.NewWilson(sc).Loop(res.Loop, n, u); err != nil {
 		t.Fatal(err)
 	}
-	return Infidelity(u, target)
+	return holonomy.BlockInfidelity(u, target)
 }
 
 // H, T and √X on the tripod with complex drives, whose dark-state

@@ -205,7 +205,7 @@ func NewDynamical(geo *Waveform) (*Dynamical, error) {
 // emptyWaveform returns a waveform of zero samples on the one-channel
 // scheme q: the dynamical gate of a diagonal target.
 func emptyWaveform(q *holonomy.Scheme, target *holonomy.Mat, hw Hardware, minF float64) *Waveform {
-	sc, hz := canonScheme(q)
+	sc, hz := CanonScheme(q)
 	return &Waveform{
 		Scheme:      sc,
 		Target:      target,
@@ -216,7 +216,7 @@ func emptyWaveform(q *holonomy.Scheme, target *holonomy.Mat, hw Hardware, minF f
 		CodeI:       [][]int32{{}},
 		CodeQ:       [][]int32{{}},
 		Detuning:    make([][]float64, len(sc.Levels)),
-		levelHz:     hz,
+		LevelHz:     hz,
 	}
 }
 

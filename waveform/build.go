@@ -42,7 +42,7 @@ type Waveform struct {
 	// sample (Hz), or nil for a level without one.
 	Detuning [][]float64
 
-	levelHz []float64 // static level detunings in Hz (canonical)
+	LevelHz []float64 // static level detunings in Hz (canonical)
 }
 
 // Span describes one segment of a Waveform.
@@ -154,7 +154,7 @@ func plannedSlew(hw *Hardware) (float64, error) {
 	floor := 2 * lsb * hw.SampleRate
 	slew := math.Min(slewUse*hw.MaxSlew, hw.MaxSlew-floor)
 	if slew <= 0 {
-		return 0, &LimitError{Check: newCheck("slew rate (two DAC steps per sample)", floor, hw.MaxSlew, "Hz/s", boundMax)}
+		return 0, &LimitError{Check: NewCheck("slew rate (two DAC steps per sample)", floor, hw.MaxSlew, "Hz/s", boundMax)}
 	}
 	return slew, nil
 }
@@ -229,7 +229,7 @@ type builder struct {
 // that the chosen timing exceeds — duration, for example — are not
 // errors: they show up as failed checks in Verify.
 func Build(p *Plan, hw Hardware) (*Waveform, error) {
-	if err := p.validate(); err != nil {
+	if err := p.Validate(); err != nil {
 		return nil, err
 	}
 	if err := hw.Validate(len(p.Scheme.Channels)); err != nil {
@@ -240,8 +240,8 @@ func Build(p *Plan, hw Hardware) (*Waveform, error) {
 	if err != nil {
 		return nil, err
 	}
-	sc, hz := canonScheme(p.Scheme)
-	bare := schemeFromHz(sc, make([]float64, len(hz)))
+	sc, hz := CanonScheme(p.Scheme)
+	bare := SchemeFromHz(sc, make([]float64, len(hz)))
 	b := &builder{
 		sc: sc, bare: bare, hw: hw, alpha: scheduleMargin * p.adiabaticity(), slew: slew,
 		sp: newSpectrum(sc),
@@ -303,7 +303,7 @@ func Build(p *Plan, hw Hardware) (*Waveform, error) {
 		limit, what = MaxSampleLimit, "sample count (waveform file bound)"
 	}
 	if n0 > limit || n > limit {
-		return nil, &LimitError{Check: newCheck(what, float64(n), float64(limit), "", boundMax)}
+		return nil, &LimitError{Check: NewCheck(what, float64(n), float64(limit), "", boundMax)}
 	}
 	w := &Waveform{
 		Scheme:       sc,
@@ -311,7 +311,7 @@ func Build(p *Plan, hw Hardware) (*Waveform, error) {
 		Hardware:     hw,
 		Adiabaticity: p.adiabaticity(),
 		MinFidelity:  p.minFidelity(),
-		levelHz:      hz,
+		LevelHz:      hz,
 	}
 	nch, nlev := len(sc.Channels), sc.Dim()
 	w.I, w.Q = make([][]float64, nch), make([][]float64, nch)
@@ -450,7 +450,7 @@ func (b *builder) timeAdiabatic(seg Segment) (*timing, error) {
 			maxU[c] = math.Max(maxU[c], math.Hypot(v[2*c], v[2*c+1]))
 		}
 		for _, x := range v {
-			if !finite(x) {
+			if !holonomy.Finite(x) {
 				return nil, fmt.Errorf("shape gives a non-finite point at s = %g", s)
 			}
 		}
@@ -931,16 +931,16 @@ func (b *builder) clusterPhase(w *Waveform, nr, n int) (total, loop float64, err
 func (w *Waveform) quantize() error {
 	nch := len(w.I)
 	w.CodeI, w.CodeQ = make([][]int32, nch), make([][]int32, nch)
-	mc := w.Hardware.maxCode()
+	mc := w.Hardware.MaxCode()
 	for c := 0; c < nch; c++ {
 		w.CodeI[c], w.CodeQ[c] = make([]int32, w.Len()), make([]int32, w.Len())
 		fs := w.Hardware.FullScale[c]
 		for k := range w.I[c] {
-			ci, err := dacCode(w.I[c][k], fs, mc)
+			ci, err := DACCode(w.I[c][k], fs, mc)
 			if err != nil {
 				return fmt.Errorf("channel %q sample %d: %w", w.Scheme.Channels[c].Name, k, err)
 			}
-			cq, err := dacCode(w.Q[c][k], fs, mc)
+			cq, err := DACCode(w.Q[c][k], fs, mc)
 			if err != nil {
 				return fmt.Errorf("channel %q sample %d: %w", w.Scheme.Channels[c].Name, k, err)
 			}
@@ -950,12 +950,12 @@ func (w *Waveform) quantize() error {
 	return nil
 }
 
-// dacCode returns round(x/fs·mc), halves away from zero. Codes outside the
+// DACCode returns round(x/fs·mc), halves away from zero. Codes outside the
 // DAC range are returned as they are (a failed check, never clipped);
 // codes beyond the int32 range are an error.
-func dacCode(x, fs, mc float64) (int32, error) {
+func DACCode(x, fs, mc float64) (int32, error) {
 	v := math.Round(x / fs * mc)
-	if !finite(v) || math.Abs(v) > math.MaxInt32 {
+	if !holonomy.Finite(v) || math.Abs(v) > math.MaxInt32 {
 		return 0, fmt.Errorf("drive %g Hz is beyond any DAC code at full scale %g Hz", x, fs)
 	}
 	return int32(v), nil

@@ -28,7 +28,7 @@ const (
 	boundMin = true
 )
 
-func newCheck(name string, value, limit float64, unit string, lower bool) Check {
+func NewCheck(name string, value, limit float64, unit string, lower bool) Check {
 	m := limit - value
 	if lower {
 		m = value - limit
@@ -57,7 +57,7 @@ func (w *Waveform) HardwareChecks() []Check {
 	hw := &w.Hardware
 	var out []Check
 	n := w.Len()
-	mc := hw.maxCode()
+	mc := hw.MaxCode()
 	for c, ch := range w.Scheme.Channels {
 		var peak, slew, code float64
 		var prev complex128
@@ -72,9 +72,9 @@ func (w *Waveform) HardwareChecks() []Check {
 			prev = z
 		}
 		out = append(out,
-			newCheck("peak Rabi frequency "+ch.Name, peak, hw.MaxRabi[c], "Hz", boundMax),
-			newCheck("slew rate "+ch.Name, slew, hw.MaxSlew, "Hz/s", boundMax),
-			newCheck("DAC code range "+ch.Name, code, mc, "", boundMax),
+			NewCheck("peak Rabi frequency "+ch.Name, peak, hw.MaxRabi[c], "Hz", boundMax),
+			NewCheck("slew rate "+ch.Name, slew, hw.MaxSlew, "Hz/s", boundMax),
+			NewCheck("DAC code range "+ch.Name, code, mc, "", boundMax),
 		)
 	}
 	rem := 0.0
@@ -82,10 +82,10 @@ func (w *Waveform) HardwareChecks() []Check {
 		rem = float64(n % hw.Granularity)
 	}
 	out = append(out,
-		newCheck("sample count", float64(n), float64(hw.MaxSamples), "", boundMax),
-		newCheck("sample count remainder modulo granularity", rem, 0, "", boundMax),
-		newCheck("duration", w.Duration(), hw.MaxDuration, "s", boundMax),
-		newCheck("minimum duration", w.Duration(), hw.MinDuration, "s", boundMin),
+		NewCheck("sample count", float64(n), float64(hw.MaxSamples), "", boundMax),
+		NewCheck("sample count remainder modulo granularity", rem, 0, "", boundMax),
+		NewCheck("duration", w.Duration(), hw.MaxDuration, "s", boundMax),
+		NewCheck("minimum duration", w.Duration(), hw.MinDuration, "s", boundMin),
 	)
 	return out
 }

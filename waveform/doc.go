@@ -1,7 +1,6 @@
 // Package waveform turns a loop in control space into a timed, sampled,
 // DAC-quantised drive waveform, verifies it by exact propagation in the full
-// level scheme, checks it against the hardware limits and reads and writes
-// it in loopgate's file formats.
+// level scheme and checks it against the hardware limits.
 //
 // # Pipeline
 //
@@ -102,10 +101,5 @@
 //
 // # Files
 //
-// File.WriteJSON writes the self-contained waveform file described by
-// schemas.Waveform; WriteCSV and WriteNPY export the samples; LoopFile
-// holds a loop as sampled unit-scale points (schemas.Loop). ReadWaveform
-// and ReadLoop bound the file size, validate against the schema, then check
-// the contents; their errors are *FileError values naming the file and a
-// JSON pointer. Writers take an io.Writer and never touch the file system.
+// The file formats live in package waveform/wavefile.
 package waveform

@@ -3,6 +3,7 @@ package waveform_test
 import (
 	"bytes"
 	"fmt"
+	"github.com/loopgate/loopgate/waveform/wavefile"
 	"log"
 	"math"
 
@@ -146,18 +147,18 @@ func ExampleReadWaveform() {
 		log.Fatal(err)
 	}
 	spec := []byte("an invented spec\n")
-	f := &waveform.File{ToolVersion: "example", SpecSHA256: waveform.SpecHash(spec), Seed: 42, Spec: string(spec), Waveform: w, Verification: v}
+	f := &wavefile.File{ToolVersion: "example", SpecSHA256: wavefile.SpecHash(spec), Seed: 42, Spec: string(spec), Waveform: w, Verification: v}
 	var buf bytes.Buffer
 	if err := f.WriteJSON(&buf); err != nil {
 		log.Fatal(err)
 	}
-	g, err := waveform.ReadWaveform(&buf, "hadamard.json")
+	g, err := wavefile.ReadWaveform(&buf, "hadamard.json")
 	if err != nil {
 		log.Fatal(err)
 	}
 	fmt.Println(g.Waveform.Len(), "samples, seed", g.Seed, "pass", g.Verification.Pass())
-	fmt.Println(waveform.NPYColumns(g.Waveform))
-	_, err = waveform.ReadWaveform(bytes.NewReader([]byte(`{"format": "loopgate-waveform", "version": 2}`)), "future.json")
+	fmt.Println(wavefile.NPYColumns(g.Waveform))
+	_, err = wavefile.ReadWaveform(bytes.NewReader([]byte(`{"format": "loopgate-waveform", "version": 2}`)), "future.json")
 	fmt.Println(err)
 	// Output:
 	// 192 samples, seed 42 pass true

@@ -26,16 +26,16 @@ func TestDACCodes(t *testing.T) {
 		{0.49 * lsb, 0}, {2.5 * lsb, 3}, {fs, 8191}, {-fs, -8191},
 	}
 	for _, c := range cases {
-		got, err := dacCode(c.x, fs, mc)
+		got, err := DACCode(c.x, fs, mc)
 		if err != nil || got != c.want {
 			t.Errorf("code(%g LSB) = %d, %v; want %d", c.x/lsb, got, err, c.want)
 		}
 	}
 	// Out of range is reported, not clipped.
-	if got, _ := dacCode(2*fs, fs, mc); got != 16382 {
+	if got, _ := DACCode(2*fs, fs, mc); got != 16382 {
 		t.Errorf("code(2 FS) = %d; want 16382 (unclipped)", got)
 	}
-	if _, err := dacCode(1e30, fs, mc); err == nil {
+	if _, err := DACCode(1e30, fs, mc); err == nil {
 		t.Error("no error for a drive beyond the int32 code range")
 	}
 	w := mustBuild(t, tripodPlan(math.Pi/4, 0.05), testHardware(3, 10e6))
@@ -46,7 +46,7 @@ func TestDACCodes(t *testing.T) {
 			if math.Abs(real(z)-w.I[c][k]) > l/2*(1+1e-12) || math.Abs(imag(z)-w.Q[c][k]) > l/2*(1+1e-12) {
 				t.Fatalf("channel %d sample %d: quantised %v from (%g, %g), step %g", c, k, z, w.I[c][k], w.Q[c][k], l)
 			}
-			back, _ := dacCode(real(z), w.Hardware.FullScale[c], w.Hardware.maxCode())
+			back, _ := DACCode(real(z), w.Hardware.FullScale[c], w.Hardware.MaxCode())
 			if back != w.CodeI[c][k] {
 				t.Fatalf("code %d → %g Hz → code %d", w.CodeI[c][k], real(z), back)
 			}

@@ -344,18 +344,6 @@ func TestFilterKernel(t *testing.T) {
 	}
 }
 
-func TestExcitedLevels(t *testing.T) {
-	if e := excitedLevels(holonomy.Tripod()); len(e) != 1 || e[0] != 3 {
-		t.Errorf("tripod excited levels %v; want [3] (e)", e)
-	}
-	if e := excitedLevels(holonomy.Lambda()); len(e) != 1 || e[0] != 2 {
-		t.Errorf("Λ excited levels %v; want [2] (e)", e)
-	}
-	if e := excitedLevels(holonomy.Spin(1, 0, 1)); len(e) != 0 {
-		t.Errorf("spin-1/2 excited levels %v; want none", e)
-	}
-}
-
 // Error-model detunings reach the right levels: a two-photon detuning δ on
 // |1⟩ with no drive gives the phase gate diag(1, e^{−iδT}).
 func TestTwoPhotonDetuningIdle(t *testing.T) {

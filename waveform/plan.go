@@ -33,7 +33,7 @@ func (k Kind) String() string {
 	return fmt.Sprintf("Kind(%d)", int(k))
 }
 
-func parseKind(s string) (Kind, error) {
+func ParseKind(s string) (Kind, error) {
 	switch s {
 	case "adiabatic":
 		return Adiabatic, nil
@@ -156,7 +156,7 @@ func (h *Hardware) Validate(nch int) error {
 	if h.DACBits < 2 || h.DACBits > MaxDACBits {
 		return fmt.Errorf("hardware: DAC resolution %d bits; need 2 to %d", h.DACBits, MaxDACBits)
 	}
-	if !finite(h.MinDuration) || h.MinDuration < 0 {
+	if !holonomy.Finite(h.MinDuration) || h.MinDuration < 0 {
 		return fmt.Errorf("hardware: minimum duration %v s; need a finite number ≥ 0", h.MinDuration)
 	}
 	if !positive(h.MaxDuration) {
@@ -168,11 +168,11 @@ func (h *Hardware) Validate(nch int) error {
 	return nil
 }
 
-// maxCode returns the largest DAC code, 2^(bits−1) − 1.
-func (h *Hardware) maxCode() float64 { return float64(int64(1)<<(h.DACBits-1) - 1) }
+// MaxCode returns the largest DAC code, 2^(bits−1) − 1.
+func (h *Hardware) MaxCode() float64 { return float64(int64(1)<<(h.DACBits-1) - 1) }
 
 // lsb returns the drive step (Hz) of one DAC code on channel c.
-func (h *Hardware) lsb(c int) float64 { return h.FullScale[c] / h.maxCode() }
+func (h *Hardware) lsb(c int) float64 { return h.FullScale[c] / h.MaxCode() }
 
 // clone returns a deep copy.
 func (h Hardware) clone() Hardware {
@@ -181,9 +181,9 @@ func (h Hardware) clone() Hardware {
 	return h
 }
 
-// validate checks the plan's shape and dimensions; it evaluates each shape
+// Validate checks the plan's shape and dimensions; it evaluates each shape
 // at s = 0 and s = 1.
-func (p *Plan) validate() error {
+func (p *Plan) Validate() error {
 	if p.Scheme == nil {
 		return errors.New("plan has no level scheme")
 	}
@@ -201,17 +201,17 @@ func (p *Plan) validate() error {
 		return fmt.Errorf("plan: target must be %d×%d for %d computational levels", d, d, d)
 	}
 	for _, v := range p.Target.Data {
-		if !finite(real(v)) || !finite(imag(v)) {
+		if !holonomy.Finite(real(v)) || !holonomy.Finite(imag(v)) {
 			return errors.New("plan: target has a non-finite element")
 		}
 	}
 	if len(p.Segments) == 0 || len(p.Segments) > MaxSegments {
 		return fmt.Errorf("plan has %d segments; need 1 to %d", len(p.Segments), MaxSegments)
 	}
-	if !finite(p.Adiabaticity) || p.Adiabaticity < 0 {
+	if !holonomy.Finite(p.Adiabaticity) || p.Adiabaticity < 0 {
 		return fmt.Errorf("plan: adiabaticity target %v; need a positive number or 0 for the default", p.Adiabaticity)
 	}
-	if !finite(p.MinFidelity) || p.MinFidelity < 0 || p.MinFidelity > 1 {
+	if !holonomy.Finite(p.MinFidelity) || p.MinFidelity < 0 || p.MinFidelity > 1 {
 		return fmt.Errorf("plan: minimum fidelity %v; need a number in (0, 1] or 0 for the default", p.MinFidelity)
 	}
 	a, b := p.Scheme.NewPoint(), p.Scheme.NewPoint()
@@ -272,12 +272,12 @@ func clearPoint(p holonomy.Point) {
 
 func pointFinite(p holonomy.Point) bool {
 	for _, v := range p.Drive {
-		if !finite(real(v)) || !finite(imag(v)) {
+		if !holonomy.Finite(real(v)) || !holonomy.Finite(imag(v)) {
 			return false
 		}
 	}
 	for _, v := range p.Detuning {
-		if !finite(v) {
+		if !holonomy.Finite(v) {
 			return false
 		}
 	}
@@ -308,22 +308,21 @@ func pointNorm(a holonomy.Point) float64 {
 	return math.Sqrt(s)
 }
 
-func finite(x float64) bool   { return !math.IsNaN(x) && !math.IsInf(x, 0) }
-func positive(x float64) bool { return finite(x) && x > 0 }
+func positive(x float64) bool { return holonomy.Finite(x) && x > 0 }
 
-// canonScheme returns a deep copy of s whose level detunings are exactly
+// CanonScheme returns a deep copy of s whose level detunings are exactly
 // 2π·hz[k] with hz[k] = Detuning/2π, so that writing hz to a file and
 // reading it back reproduces the scheme bit for bit.
-func canonScheme(s *holonomy.Scheme) (*holonomy.Scheme, []float64) {
+func CanonScheme(s *holonomy.Scheme) (*holonomy.Scheme, []float64) {
 	hz := make([]float64, len(s.Levels))
 	for k, l := range s.Levels {
 		hz[k] = l.Detuning / (2 * math.Pi)
 	}
-	return schemeFromHz(s, hz), hz
+	return SchemeFromHz(s, hz), hz
 }
 
-// schemeFromHz returns a deep copy of s with level detunings 2π·hz.
-func schemeFromHz(s *holonomy.Scheme, hz []float64) *holonomy.Scheme {
+// SchemeFromHz returns a deep copy of s with level detunings 2π·hz.
+func SchemeFromHz(s *holonomy.Scheme, hz []float64) *holonomy.Scheme {
 	c := &holonomy.Scheme{
 		Name:          s.Name,
 		Levels:        append([]holonomy.Level(nil), s.Levels...),
@@ -347,26 +346,4 @@ func uniqueChannels(s *holonomy.Scheme) error {
 		seen[c.Name] = true
 	}
 	return nil
-}
-
-// excitedLevels returns the levels that are not computational and are the
-// upper level of at least one channel.
-func excitedLevels(s *holonomy.Scheme) []int {
-	comp := make(map[int]bool)
-	for _, k := range s.Computational {
-		comp[k] = true
-	}
-	var out []int
-	for k := range s.Levels {
-		if comp[k] {
-			continue
-		}
-		for _, c := range s.Channels {
-			if c.Upper == k {
-				out = append(out, k)
-				break
-			}
-		}
-	}
-	return out
 }

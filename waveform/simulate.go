@@ -101,9 +101,9 @@ func (k FilterKind) String() string {
 	return fmt.Sprintf("FilterKind(%d)", int(k))
 }
 
-// filterName returns the name of m's filter as written in waveform files:
+// FilterName returns the name of m's filter as written in waveform files:
 // "none" without a rise time, else the filter kind's name.
-func (m *ErrorModel) filterName() string {
+func (m *ErrorModel) FilterName() string {
 	if m.RiseTime == 0 {
 		return "none"
 	}
@@ -208,7 +208,7 @@ func NewSimulator(w *Waveform) *Simulator {
 	n := w.Scheme.Dim()
 	s := &Simulator{
 		w: w, n: n, d: len(w.Scheme.Computational), nch: len(w.Scheme.Channels),
-		excited: excitedLevels(w.Scheme),
+		excited: w.Scheme.ExcitedLevels(),
 		prop:    holonomy.NewPropagator(n),
 		h:       holonomy.NewMat(n, n),
 		u:       holonomy.NewMat(n, n),
@@ -250,18 +250,18 @@ func Simulate(w *Waveform, m ErrorModel) (*Outcome, error) {
 
 // validate checks m for the waveform's scheme.
 func (s *Simulator) validate(m *ErrorModel) error {
-	if !finite(m.AmplitudeError) || m.AmplitudeError <= -1 {
+	if !holonomy.Finite(m.AmplitudeError) || m.AmplitudeError <= -1 {
 		return fmt.Errorf("error model: amplitude error %v; need a finite number above −1", m.AmplitudeError)
 	}
 	if m.ChannelErrors != nil && len(m.ChannelErrors) != s.nch {
 		return fmt.Errorf("error model: %d channel amplitude errors for %d channels", len(m.ChannelErrors), s.nch)
 	}
 	for c, v := range m.ChannelErrors {
-		if !finite(v) || v <= -1 {
+		if !holonomy.Finite(v) || v <= -1 {
 			return fmt.Errorf("error model: amplitude error of channel %q is %v; need a finite number above −1", s.w.Scheme.Channels[c].Name, v)
 		}
 	}
-	if !finite(m.OnePhotonDetuning) || !finite(m.TwoPhotonDetuning) {
+	if !holonomy.Finite(m.OnePhotonDetuning) || !holonomy.Finite(m.TwoPhotonDetuning) {
 		return errors.New("error model: detunings must be finite")
 	}
 	// Rates and detunings so large that the state decays or winds many
@@ -277,10 +277,10 @@ func (s *Simulator) validate(m *ErrorModel) error {
 			return fmt.Errorf("error model: a detuning of %.3g Hz winds %.3g rad per sample (%.3g s); the limit is %g rad", d, r, dt, float64(maxRatePerSample))
 		}
 	}
-	if !finite(m.Decay) || m.Decay < 0 || !finite(m.Dephasing) || m.Dephasing < 0 {
+	if !holonomy.Finite(m.Decay) || m.Decay < 0 || !holonomy.Finite(m.Dephasing) || m.Dephasing < 0 {
 		return errors.New("error model: decay and dephasing rates must be finite and non-negative")
 	}
-	if !finite(m.RiseTime) || m.RiseTime < 0 {
+	if !holonomy.Finite(m.RiseTime) || m.RiseTime < 0 {
 		return fmt.Errorf("error model: rise time %v s; need a finite number ≥ 0", m.RiseTime)
 	}
 	if m.RiseTime > s.w.Duration() {
@@ -295,7 +295,7 @@ func (s *Simulator) validate(m *ErrorModel) error {
 				m.Filter, m.RiseTime, reach, reachText(m.Filter), maxFilterSamples)
 		}
 	}
-	if !finite(m.PhaseStep) || m.PhaseStep < 0 || m.PhaseStep > math.Pi {
+	if !holonomy.Finite(m.PhaseStep) || m.PhaseStep < 0 || m.PhaseStep > math.Pi {
 		return fmt.Errorf("error model: phase step %v rad; need a finite number from 0 (exact phases) to π", m.PhaseStep)
 	}
 	if m.SubSteps < 0 || m.SubSteps > 64 {

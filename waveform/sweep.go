@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"github.com/loopgate/loopgate/holonomy"
 	"io"
 	"math"
 	"runtime"
@@ -77,7 +78,7 @@ func (a Axis) set(m *ErrorModel, v float64) {
 
 // validValue reports whether v is an allowed value on the axis.
 func (a Axis) validValue(v float64) bool {
-	if !finite(v) {
+	if !holonomy.Finite(v) {
 		return false
 	}
 	return a != AmplitudeAxis || v > -1

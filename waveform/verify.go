@@ -55,7 +55,7 @@ func (v *Verification) Same(o *Verification) bool {
 	m, n := v.Model, o.Model
 	if !eq(m.AmplitudeError, n.AmplitudeError) || !eqs(m.ChannelErrors, n.ChannelErrors) || !eq(m.OnePhotonDetuning, n.OnePhotonDetuning) ||
 		!eq(m.TwoPhotonDetuning, n.TwoPhotonDetuning) || !eq(m.Decay, n.Decay) || !eq(m.Dephasing, n.Dephasing) ||
-		!eq(m.RiseTime, n.RiseTime) || m.filterName() != n.filterName() || m.SubSteps != n.SubSteps ||
+		!eq(m.RiseTime, n.RiseTime) || m.FilterName() != n.FilterName() || m.SubSteps != n.SubSteps ||
 		!eq(m.PhaseStep, n.PhaseStep) || m.Unquantized != n.Unquantized {
 		return false
 	}
@@ -109,9 +109,9 @@ func Verify(w *Waveform, m ErrorModel) (*Verification, error) {
 	if m.ChannelErrors != nil {
 		v.Model.ChannelErrors = append([]float64(nil), m.ChannelErrors...)
 	}
-	v.Checks = append(v.Checks, newCheck("fidelity", out.Fidelity, w.MinFidelity, "", boundMin))
+	v.Checks = append(v.Checks, NewCheck("fidelity", out.Fidelity, w.MinFidelity, "", boundMin))
 	if !math.IsNaN(alpha) {
-		v.Checks = append(v.Checks, newCheck("adiabaticity", alpha, w.Adiabaticity, "", boundMax))
+		v.Checks = append(v.Checks, NewCheck("adiabaticity", alpha, w.Adiabaticity, "", boundMax))
 	}
 	v.Checks = append(v.Checks, w.HardwareChecks()...)
 	return v, nil

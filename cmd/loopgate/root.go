@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"github.com/loopgate/loopgate/design/spec"
 	"io"
 	"os"
 	"strings"
@@ -137,12 +138,12 @@ Existing files are not replaced unless --overwrite is given.`,
   loopgate design my-spec.yaml -o out/ --seed 11 --json`,
 		Args: inputArgs(cobra.MaximumNArgs(1)),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			var spec *design.Spec
+			var s *spec.Spec
 			var err error
 			if len(args) == 1 {
-				spec, err = design.LoadSpec(args[0])
+				s, err = spec.LoadSpec(args[0])
 			} else {
-				spec, err = design.LoadDemoSpec()
+				s, err = spec.LoadDemoSpec()
 			}
 			if err != nil {
 				return &design.InputError{Err: err}
@@ -160,7 +161,7 @@ Existing files are not replaced unless --overwrite is given.`,
 			if !quiet && !asJSON {
 				opt.Log = os.Stderr
 			}
-			res, err := design.Design(cmd.Context(), spec, opt)
+			res, err := design.Design(cmd.Context(), s, opt)
 			return emit(cmd, asJSON, res, res != nil, func(w io.Writer) { printOutcome(w, res) }, err)
 		},
 	}
@@ -241,7 +242,7 @@ the loop, and explains in words what the loop can and cannot do.`,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			opt := design.CheckOptions{Target: target}
 			if rabi != "" {
-				v, err := design.ParseQuantity(rabi, design.Frequency)
+				v, err := spec.ParseQuantity(rabi, spec.Frequency)
 				if err != nil || v <= 0 {
 					return &design.InputError{Err: fmt.Errorf("flag --rabi: %q is not a positive Rabi frequency Ω/2π such as \"20 MHz\"", rabi)}
 				}
@@ -285,14 +286,14 @@ func newStarterCmd() *cobra.Command {
 		asJSON    bool
 	)
 	cmd := &cobra.Command{
-		Use:   "starter {" + strings.Join(design.StarterPresets(), "|") + "}",
+		Use:   "starter {" + strings.Join(spec.StarterPresets(), "|") + "}",
 		Short: "Write a commented starter spec for a level-scheme preset",
 		Example: `  loopgate starter tripod > my-tripod.yaml
   loopgate starter lambda -o my-lambda.yaml`,
 		Args:      inputArgs(cobra.ExactArgs(1)),
-		ValidArgs: design.StarterPresets(),
+		ValidArgs: spec.StarterPresets(),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			b, err := design.StarterSpec(args[0])
+			b, err := spec.StarterSpec(args[0])
 			if err != nil {
 				return &design.InputError{Err: err}
 			}
@@ -335,7 +336,7 @@ func newGatesCmd() *cobra.Command {
 				Matrix      [2][2][2]float64 `json:"matrix"`
 			}
 			var list []gateJSON
-			for _, g := range design.Gates() {
+			for _, g := range spec.Gates() {
 				j := gateJSON{Name: g.Name, Symbol: g.Symbol, Aliases: g.Aliases, Description: g.Description}
 				for r := 0; r < 2; r++ {
 					for c := 0; c < 2; c++ {

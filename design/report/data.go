@@ -1,9 +1,12 @@
 package report
 
+import "github.com/loopgate/loopgate/waveform"
+
 // Threshold is the fidelity that defines the robust region: the report's
 // robustness curves, map contour and geometric-advantage widths all refer to
-// the region where the average gate fidelity is at least Threshold.
-const Threshold = 0.999
+// the region where the average gate fidelity is at least Threshold, the
+// threshold the sweeps use.
+const Threshold = waveform.DefaultThreshold
 
 // Data is everything a report shows. It holds plain numbers and strings only,
 // so any part of the program can fill it. Every section but the header, the
