@@ -313,28 +313,7 @@ func (s *Search) Run(ctx context.Context) (*Result, error) {
 	o := newObjective(s, c)
 	dim := s.Shape.NumParams()
 	scale := c.scale
-	ms := &multiStart{
-		dim: dim, restarts: c.restarts, maxEvals: c.maxEvals, target: c.target, goal: searchMargin * c.target,
-		simplex: 0.25 * scale, patience: 30 * dim, progress: 1e-3,
-		rng: rand.New(rand.NewPCG(s.Seed, 0x6c6f6f70)),
-		draw: func(rng *rand.Rand, x []float64) {
-			for i := range x {
-				x[i] = (2*rng.Float64() - 1) * scale
-			}
-		},
-		needTarget: true,
-		// Restarts run on a worker pool, each worker with its own shape,
-		// Wilson workspace and objective (worker 0 uses o).
-		newEval: func(i int) evalFunc {
-			if i == 0 {
-				return o.nominal
-			}
-			return newObjective(s, c).nominal
-		},
-	}
-	if s.Start != nil {
-		ms.starts = [][]float64{s.Start}
-	}
+	ms := s.nominalStarts(o, c)
 	best, err := ms.run(ctx)
 	if err != nil {
 		return nil, err
@@ -388,6 +367,35 @@ func (s *Search) Run(ctx context.Context) (*Result, error) {
 		res.Robust = rep
 	}
 	return res, nil
+}
+
+// nominalStarts sets up the multi-start nominal search. Its restarts run on
+// a worker pool, each worker with its own shape, Wilson workspace and
+// objective (worker 0 uses o).
+func (s *Search) nominalStarts(o *objective, c searchConfig) *multiStart {
+	dim := s.Shape.NumParams()
+	scale := c.scale
+	ms := &multiStart{
+		dim: dim, restarts: c.restarts, maxEvals: c.maxEvals, target: c.target, goal: searchMargin * c.target,
+		simplex: 0.25 * scale, patience: 30 * dim, progress: 1e-3,
+		rng: rand.New(rand.NewPCG(s.Seed, 0x6c6f6f70)),
+		draw: func(rng *rand.Rand, x []float64) {
+			for i := range x {
+				x[i] = (2*rng.Float64() - 1) * scale
+			}
+		},
+		needTarget: true,
+		newEval: func(i int) evalFunc {
+			if i == 0 {
+				return o.nominal
+			}
+			return newObjective(s, c).nominal
+		},
+	}
+	if s.Start != nil {
+		ms.starts = [][]float64{s.Start}
+	}
+	return ms
 }
 
 // check runs the adaptive Wilson loop on the shape at x and fills a Result.
