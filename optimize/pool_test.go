@@ -172,3 +172,48 @@ func TestSearchSameOnAnyGOMAXPROCS(t *testing.T) {
 		}
 	}
 }
+
+// TestRobustSameOnAnyGOMAXPROCS: the robust stage evaluates its ensemble
+// members in concurrent groups; its result (parameters, per-member
+// infidelities, evaluations) is byte-identical for GOMAXPROCS 1, 2 and 3,
+// for a Fourier loop and a polygon (whose Point uses scratch space of its
+// own, so each group needs its own shape).
+func TestRobustSameOnAnyGOMAXPROCS(t *testing.T) {
+	shapes := map[string]func(*Sphere) Shape{
+		"fourier": fourier1,
+		"polygon": func(sp *Sphere) Shape { return NewPolygon(sp, 2) },
+	}
+	for name, shape := range shapes {
+		var first string
+		for _, procs := range []int{1, 2, 3} {
+			var out string
+			withProcs(procs, func() {
+				s := tripodSearch(t, gate("T"), false, shape)
+				s.Ensemble = GridEnsemble(0.02, 0.1, []float64{0, 0, 1, 0})
+				s.RobustEvaluations = 60
+				res, err := s.Run(context.Background())
+				if err != nil {
+					t.Fatal(err)
+				}
+				r := res.Robust
+				if r == nil || r.Insensitive || r.Evaluations == 0 {
+					t.Fatalf("%s: the robust stage did not run: %+v", name, r)
+				}
+				out = fmt.Sprintf("%v|%v|%v|%d|%v", bitsOf(res.Params), bitsOf(r.Nominal), bitsOf(r.Robust), r.Evaluations, r.Kept)
+			})
+			if procs == 1 {
+				first = out
+			} else if out != first {
+				t.Errorf("%s: GOMAXPROCS %d differs from 1:\n%s\n%s", name, procs, out, first)
+			}
+		}
+	}
+}
+
+func bitsOf(x []float64) []uint64 {
+	b := make([]uint64, len(x))
+	for i, v := range x {
+		b[i] = math.Float64bits(v)
+	}
+	return b
+}

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math/rand/v2"
+	"runtime"
 	"sync"
 
 	"github.com/loopgate/loopgate/holonomy"
@@ -225,9 +226,10 @@ type objective struct {
 	n       int
 	lambda  float64
 	penalty func([]float64) float64
-	a, b    []float64 // length scratch
-	chords  int       // samples of the length
-	members []*member // robust stage only
+	a, b    []float64      // length scratch
+	chords  int            // samples of the length
+	members []*member      // robust stage only
+	groups  []*memberGroup // the members shared out among goroutines
 	per     []float64
 }
 
@@ -285,15 +287,65 @@ func (o *objective) nominal(x []float64) (total, infid, pen float64) {
 func (o *objective) robust(x []float64) (total, infid, pen float64) {
 	o.shape.SetParams(x)
 	l, p := o.parts(x)
-	for i, m := range o.members {
-		if _, err := m.w.Loop(m.loop, o.n, o.u); err != nil {
-			o.per[i] = 1
-			continue
-		}
-		o.per[i] = holonomy.BlockInfidelity(o.u, o.target)
-	}
+	o.memberInfidelities(x, o.n, o.per)
 	mean, _ := meanMax(o.per)
 	return mean + l + p, mean, p
+}
+
+// memberGroup is the share of the ensemble members one goroutine evaluates:
+// members g, g+G, g+2G, … of G groups, on the group's own copy of the shape.
+type memberGroup struct {
+	shape   Shape
+	u       *holonomy.Mat
+	members []int
+}
+
+// memberInfidelities writes into out the infidelity of every member at
+// the shape parameters x with n loop points (1 where the Wilson loop
+// fails). The groups run concurrently; each member's value depends only on
+// x, so out is the same for any number of groups.
+func (o *objective) memberInfidelities(x []float64, n int, out []float64) {
+	one := func(g *memberGroup) {
+		g.shape.SetParams(x)
+		for _, i := range g.members {
+			m := o.members[i]
+			out[i] = 1
+			if _, err := m.w.Loop(m.loop, n, g.u); err == nil {
+				out[i] = holonomy.BlockInfidelity(g.u, o.target)
+			}
+		}
+	}
+	var wg sync.WaitGroup
+	for gi := 1; gi < len(o.groups); gi++ {
+		wg.Add(1)
+		go func(g *memberGroup) {
+			defer wg.Done()
+			one(g)
+		}(o.groups[gi])
+	}
+	one(o.groups[0])
+	wg.Wait()
+}
+
+// groupMembers shares the members among min(GOMAXPROCS, members) groups,
+// the first on o's shape, the others on clones, and points every member's
+// loop at its group's shape.
+func (o *objective) groupMembers() {
+	ng := max(1, min(runtime.GOMAXPROCS(0), len(o.members)))
+	k := o.u.R
+	o.groups = make([]*memberGroup, ng)
+	for g := range o.groups {
+		sh := o.shape
+		if g > 0 {
+			sh = o.shape.Clone()
+		}
+		o.groups[g] = &memberGroup{shape: sh, u: holonomy.NewMat(k, k)}
+	}
+	for i, m := range o.members {
+		g := o.groups[i%ng]
+		g.members = append(g.members, i)
+		m.base = g.shape.Point
+	}
 }
 
 // Run performs the search and the final check. It honours ctx between
@@ -440,17 +492,12 @@ func (s *Search) robust(ctx context.Context, o *objective, x0 []float64, c searc
 		m.loop = m.point
 		o.members = append(o.members, m)
 	}
+	o.groupMembers()
 	o.per = make([]float64, len(o.members))
 	// Accurate per-member values with four times the search's points.
 	measure := func(x []float64) []float64 {
-		o.shape.SetParams(x)
 		out := make([]float64, len(o.members))
-		for i, m := range o.members {
-			out[i] = 1
-			if _, err := m.w.Loop(m.loop, 4*o.n, o.u); err == nil {
-				out[i] = holonomy.BlockInfidelity(o.u, o.target)
-			}
-		}
+		o.memberInfidelities(x, 4*o.n, out)
 		return out
 	}
 	return robustStage(ctx, s.Ensemble, x0, o.robust, measure, c.robustEvals, 0.05*c.scale, c.target)
