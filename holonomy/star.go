@@ -138,16 +138,24 @@ func starStep(u *Mat, h []complex128, n int, dt float64) bool {
 	if hub < 0 {
 		return false
 	}
-	var b [MaxLevels]complex128
+	// Leaves in order, their couplings b and conjugates.
+	var lv [MaxLevels - 1]int
+	var b, cb [MaxLevels - 1]complex128
 	var b2 float64
+	m := 0
 	for k := 0; k < n; k++ {
-		switch {
-		case k < hub:
-			b[k] = h[k*n+hub]
-		case k > hub:
-			b[k] = conjg(h[hub*n+k])
+		if k == hub {
+			continue
 		}
-		b2 += sqmag(b[k])
+		var x complex128
+		if k < hub {
+			x = h[k*n+hub]
+		} else {
+			x = conjg(h[hub*n+k])
+		}
+		lv[m], b[m], cb[m] = k, x, conjg(x)
+		b2 += sqmag(x)
+		m++
 	}
 	leaf := 0
 	if hub == 0 {
@@ -189,16 +197,12 @@ func starStep(u *Mat, h []complex128, n int, dt float64) bool {
 	for j := 0; j < cols; j++ {
 		y := d[hub*cols+j]
 		var x complex128
-		for k := 0; k < n; k++ {
-			if k != hub {
-				x += conjg(b[k]) * d[k*cols+j]
-			}
+		for i, k := range lv[:m] {
+			x += cb[i] * d[k*cols+j]
 		}
 		t := chb*y + cbb*x
-		for k := 0; k < n; k++ {
-			if k != hub {
-				d[k*cols+j] += b[k] * t
-			}
+		for i, k := range lv[:m] {
+			d[k*cols+j] += b[i] * t
 		}
 		d[hub*cols+j] = y + chh*y + chb*x
 	}
@@ -214,31 +218,34 @@ func starStep(u *Mat, h []complex128, n int, dt float64) bool {
 
 // starHub returns the hub of the Hermitian n×n matrix h (upper triangle and
 // real diagonal read) if h has the star form with at least one coupling,
-// else −1.
+// else −1. One pass over the upper triangle keeps, as a bit set, the levels
+// that every non-zero coupling so far touches; a hub among them must then
+// see all other levels share one diagonal entry.
 func starHub(h []complex128, n int) int {
-	i0, j0 := -1, -1
-	for i := 0; i < n && i0 < 0; i++ {
+	cand := uint32(1)<<n - 1
+	any := false
+	for i := 0; i < n; i++ {
+		row := h[i*n : i*n+n]
 		for j := i + 1; j < n; j++ {
-			if h[i*n+j] != 0 {
-				i0, j0 = i, j
-				break
+			if row[j] != 0 {
+				cand &= 1<<i | 1<<j
+				any = true
 			}
 		}
 	}
-	if i0 < 0 {
+	if !any || cand == 0 {
 		return -1
 	}
-	for _, hub := range [2]int{i0, j0} {
-		if isStar(h, n, hub) {
+	for hub := 0; hub < n; hub++ {
+		if cand&(1<<hub) != 0 && leavesEqual(h, n, hub) {
 			return hub
 		}
 	}
 	return -1
 }
 
-// isStar reports whether every non-zero coupling of h touches hub and all
-// other levels share one diagonal entry.
-func isStar(h []complex128, n, hub int) bool {
+// leavesEqual reports whether all levels but hub share one diagonal entry.
+func leavesEqual(h []complex128, n, hub int) bool {
 	leaf := 0
 	if hub == 0 {
 		leaf = 1
@@ -247,14 +254,6 @@ func isStar(h []complex128, n, hub int) bool {
 	for i := 0; i < n; i++ {
 		if i != hub && real(h[i*n+i]) != dg {
 			return false
-		}
-		if i == hub {
-			continue
-		}
-		for j := i + 1; j < n; j++ {
-			if j != hub && h[i*n+j] != 0 {
-				return false
-			}
 		}
 	}
 	return true
