@@ -10,7 +10,9 @@ import (
 // U = Π_k exp(−i H_k Δt), with an optional non-Hermitian loss term.
 //
 // Each step is the matrix exponential of the constant generator, exact to
-// rounding: Step (Hermitian H) uses a diagonal Padé approximant of
+// rounding: Step (Hermitian H) uses the closed form of a star-shaped
+// coupling graph where H has that form (Morris and Shore, Phys. Rev. A 27,
+// 906 (1983); see starStep), else a diagonal Padé approximant of
 // Exponential (Higham, SIAM J. Matrix Anal. Appl. 26, 1179 (2005)) for
 // ordinary steps and the eigendecomposition H = VΛV† of Eigen for very long
 // ones; StepDecay (non-Hermitian H − iΓ/2) uses Exponential with scaling and
