@@ -1,6 +1,9 @@
 package holonomy
 
-import "math"
+import (
+	"math"
+	"math/bits"
+)
 
 // Closed forms for star-shaped coupling graphs.
 //
@@ -218,43 +221,49 @@ func starStep(u *Mat, h []complex128, n int, dt float64) bool {
 
 // starHub returns the hub of the Hermitian n×n matrix h (upper triangle and
 // real diagonal read) if h has the star form with at least one coupling,
-// else −1. One pass over the upper triangle keeps, as a bit set, the levels
-// that every non-zero coupling so far touches; a hub among them must then
-// see all other levels share one diagonal entry.
+// else −1. The diagonal is read first: unless all its entries are equal,
+// the hub must be the one level whose entry differs, and a matrix with
+// two or more odd entries is refused after n comparisons. Otherwise one
+// pass over the upper triangle keeps, as a bit set, the levels that every
+// non-zero coupling touches.
 func starHub(h []complex128, n int) int {
+	d0 := real(h[0])
+	hub, odd := -1, 0
+	for i := 1; i < n; i++ {
+		if real(h[i*n+i]) != d0 {
+			hub = i
+			odd++
+		}
+	}
+	switch {
+	case odd == n-1 && n > 2:
+		// Level 0 is the odd one if the others agree.
+		d1 := real(h[n+1])
+		for i := 2; i < n; i++ {
+			if real(h[i*n+i]) != d1 {
+				return -1
+			}
+		}
+		hub = 0
+	case odd > 1:
+		return -1
+	}
 	cand := uint32(1)<<n - 1
-	any := false
+	if hub >= 0 {
+		cand = 1 << hub
+	}
+	coupled := false
 	for i := 0; i < n; i++ {
 		row := h[i*n : i*n+n]
 		for j := i + 1; j < n; j++ {
 			if row[j] != 0 {
 				cand &= 1<<i | 1<<j
-				any = true
+				coupled = true
 			}
 		}
 	}
-	if !any || cand == 0 {
+	if !coupled || cand == 0 {
 		return -1
 	}
-	for hub := 0; hub < n; hub++ {
-		if cand&(1<<hub) != 0 && leavesEqual(h, n, hub) {
-			return hub
-		}
-	}
-	return -1
-}
-
-// leavesEqual reports whether all levels but hub share one diagonal entry.
-func leavesEqual(h []complex128, n, hub int) bool {
-	leaf := 0
-	if hub == 0 {
-		leaf = 1
-	}
-	dg := real(h[leaf*n+leaf])
-	for i := 0; i < n; i++ {
-		if i != hub && real(h[i*n+i]) != dg {
-			return false
-		}
-	}
-	return true
+	return bits.TrailingZeros32(cand)
 }

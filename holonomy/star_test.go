@@ -320,4 +320,16 @@ func TestStarStep(t *testing.T) {
 	if starHub(h.Data, 4) >= 0 {
 		t.Error("unequal leaf detunings taken for a star")
 	}
+	// The odd diagonal entry names the hub: level 0 here, but the
+	// couplings meet at level 3.
+	h.Set(2, 2, 0)
+	h.Set(0, 0, 0.3)
+	if starHub(h.Data, 4) >= 0 {
+		t.Error("a detuned leaf taken for the hub")
+	}
+	h.Set(0, 0, 0)
+	h.Set(3, 3, 0.3)
+	if got := starHub(h.Data, 4); got != 3 {
+		t.Errorf("hub %d, want 3", got)
+	}
 }
