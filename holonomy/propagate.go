@@ -10,7 +10,9 @@ import (
 // U = Π_k exp(−i H_k Δt), with an optional non-Hermitian loss term.
 //
 // Each step is the matrix exponential of the constant generator, exact to
-// rounding: Step (Hermitian H) uses a diagonal Padé approximant of
+// rounding: Step (Hermitian H) uses the closed form of a star-shaped
+// coupling graph where H has that form (Morris and Shore, Phys. Rev. A 27,
+// 906 (1983); see starStep), else a diagonal Padé approximant of
 // Exponential (Higham, SIAM J. Matrix Anal. Appl. 26, 1179 (2005)) for
 // ordinary steps and the eigendecomposition H = VΛV† of Eigen for very long
 // ones; StepDecay (non-Hermitian H − iΓ/2) uses Exponential with scaling and
@@ -51,8 +53,11 @@ func NewPropagator(n int) *Propagator {
 // step dt (s). u is n×c: a propagator (c = n) or a set of c state vectors as
 // columns. Only the upper triangle and the real diagonal of h are read.
 //
-// The exponential is exact to rounding by either of two methods, whichever
-// is cheaper: for ‖h‖₁|dt| ≤ θ₁₃ = 5.37 (Higham 2005; every realistic
+// The exponential is exact to rounding by one of three methods, whichever
+// is cheapest. When h has the star form of a Morris–Shore two-level system
+// plus dark states (every coupling touches one level and the other levels
+// share one diagonal entry: the tripod or Λ on two-photon resonance), a
+// closed form costs O(n) per column (see starStep). Otherwise, for ‖h‖₁|dt| ≤ θ₁₃ = 5.37 (Higham 2005; every realistic
 // zero-order-hold step) the diagonal Padé approximant of Exponential without
 // squaring, which is unitary in exact arithmetic for the skew-Hermitian
 // −ih dt; for larger steps the eigendecomposition h = VΛV† of Eigen,
@@ -63,9 +68,12 @@ func (p *Propagator) Step(u, h *Mat, dt float64) {
 	if h.R != n || h.C != n || u.R != n {
 		panic(fmt.Sprintf("holonomy: Propagator.Step: workspace %d, H %d×%d, u %d×%d", n, h.R, h.C, u.R, u.C))
 	}
+	hd := h.Data[:n*n]
+	if starStep(u, hd, n, dt) {
+		return
+	}
 	// B = h dt in full Hermitian storage, and the 1-norm bound of Exp.
 	b := p.v.Data[:n*n]
-	hd := h.Data[:n*n]
 	for i := 0; i < n; i++ {
 		b[i*n+i] = complex(real(hd[i*n+i])*dt, 0)
 		for j := i + 1; j < n; j++ {

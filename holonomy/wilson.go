@@ -66,6 +66,16 @@ var ErrNotConverged = errors.New("holonomy: holonomy not converged")
 // (reversing the loop inverts every factor), so on a smooth loop the error
 // falls as 1/N² with an even expansion in 1/N, which Adaptive exploits.
 //
+// Dark subspace of a star. When every channel touches one hub level (tripod,
+// N-pod), the diagonal of H is zero and the working subspace chosen at the
+// base point is the (n−2)-dimensional null space of H, that null space is
+// the orthogonal complement of the bright state on the other levels
+// (Morris and Shore, Phys. Rev. A 27, 906 (1983)); its basis at each sample
+// is a Householder reflector's columns and the gap to the rest is exactly
+// the bright coupling ‖b‖ (see darkBasis). The product is basis-independent,
+// so this changes nothing but the cost; a sample with a non-zero diagonal
+// sends the pass back to the general path.
+//
 // U is finally expressed in the computational basis: with Q the block of
 // the chosen base-point eigenvectors on the computational levels and Q_u its
 // unitary polar factor, the result is Q_u U Q_u†. When the working subspace
@@ -85,6 +95,11 @@ type Wilson struct {
 	// group as one non-Abelian cluster (for example the tripod's dark pair
 	// under a small two-photon detuning), set GapTol above the splitting.
 	GapTol float64
+
+	hub    int                   // hub level of a star scheme, else −1
+	b      [MaxLevels]complex128 // star couplings at the current point
+	noFast bool                  // tests: always take the general path
+	fast   bool                  // the last pass used the closed-form dark basis
 
 	s   *Scheme
 	err error // invalid scheme
@@ -117,6 +132,7 @@ func NewWilson(s *Scheme) *Wilson {
 	}
 	n, k := len(s.Levels), len(s.Computational)
 	w.tr = newTracker(s)
+	w.hub = schemeHub(s)
 	w.p = s.NewPoint()
 	w.h1 = NewMat(n, n)
 	w.v0 = NewMat(n, n)
@@ -169,20 +185,29 @@ func (w *Wilson) Loop(loop Loop, n int, dst *Mat) (Gap, error) {
 
 // eval writes H(loop(s)) into h.
 func (w *Wilson) eval(loop Loop, s float64, h *Mat) error {
+	if err := w.point(loop, s); err != nil {
+		return err
+	}
+	w.s.Hamiltonian(h, w.p)
+	return nil
+}
+
+// point sets w.p to loop(s) and checks that it is finite.
+func (w *Wilson) point(loop Loop, s float64) error {
 	clear(w.p.Drive)
 	clear(w.p.Detuning)
 	loop(s, w.p)
+	// x − x is 0 for finite x and NaN for ±Inf and NaN.
+	var z float64
 	for _, d := range w.p.Drive {
-		if !finite(real(d)) || !finite(imag(d)) {
-			return w.badPoint(s)
-		}
+		z += (real(d) - real(d)) + (imag(d) - imag(d))
 	}
 	for _, d := range w.p.Detuning {
-		if !finite(d) {
-			return w.badPoint(s)
-		}
+		z += d - d
 	}
-	w.s.Hamiltonian(h, w.p)
+	if z != 0 {
+		return w.badPoint(s)
+	}
 	return nil
 }
 
@@ -192,26 +217,45 @@ func (w *Wilson) badPoint(s float64) error {
 
 // pass runs the loop once with n points, accumulating the Wilson products of
 // strides 1, 2, … up to ns (n must be divisible by the largest stride).
+//
+// When the scheme is a star (every channel touches one hub level), the
+// working subspace chosen at the base point is the whole dark subspace and
+// the diagonal of H is zero there, the dark basis and the exact gap at each
+// later sample come from the closed form of darkBasis instead of a warm
+// eigensolver step. If a later sample has a non-zero diagonal (a detuning),
+// the pass starts again on the general path.
 func (w *Wilson) pass(loop Loop, n, ns int) (Gap, error) {
+	w.fast = !w.noFast && w.hub >= 0
+	g, ok, err := w.sweep(loop, n, ns)
+	if !ok {
+		w.fast = false
+		g, _, err = w.sweep(loop, n, ns)
+	}
+	return g, err
+}
+
+// start evaluates the base point, checks that the loop is closed, chooses
+// the working subspace and resets the strides.
+func (w *Wilson) start(loop Loop, ns int) error {
 	tr := w.tr
 	// Closure: H(1) = H(0) to 1e-9 of the loop's scale, max ‖H‖ at s = 0, ½, 1.
 	if err := w.eval(loop, 0.5, tr.h); err != nil {
-		return Gap{}, err
+		return err
 	}
 	scale := FrobeniusNorm(tr.h)
 	if err := w.eval(loop, 1, w.h1); err != nil {
-		return Gap{}, err
+		return err
 	}
 	if err := w.eval(loop, 0, tr.h); err != nil {
-		return Gap{}, err
+		return err
 	}
 	scale = math.Max(scale, math.Max(FrobeniusNorm(w.h1), FrobeniusNorm(tr.h)))
 	if d := FrobeniusDist(w.h1, tr.h); d > 1e-9*scale {
-		return Gap{}, fmt.Errorf("%w: ‖H(1) − H(0)‖ = %.3g rad/s against a loop scale ‖H‖ = %.3g rad/s", ErrOpenLoop, d, scale)
+		return fmt.Errorf("%w: ‖H(1) − H(0)‖ = %.3g rad/s against a loop scale ‖H‖ = %.3g rad/s", ErrOpenLoop, d, scale)
 	}
 	tr.cold()
 	if err := tr.choose(w.GapTol, "base point (s = 0)"); err != nil {
-		return Gap{}, err
+		return err
 	}
 	for i := 0; i < ns; i++ {
 		st := &w.st[i]
@@ -220,16 +264,53 @@ func (w *Wilson) pass(loop Loop, n, ns int) (Gap, error) {
 		st.jump = nil
 		setIdentity(st.prod, tr.k)
 	}
-	v0 := w.v0
-	v0.Copy(tr.v)
-	gap := Gap{Min: tr.gap(), At: 0}
+	w.v0.Copy(tr.v)
+	return nil
+}
+
+// darkChosen reports whether the working subspace just chosen is the whole
+// dark subspace of a star Hamiltonian with zero diagonal.
+func (w *Wilson) darkChosen() bool {
+	tr := w.tr
+	n := tr.n
+	if len(tr.cl) != 1 || tr.cl[0].lo != 1 || tr.cl[0].d != n-2 {
+		return false
+	}
+	for i := 0; i < n; i++ {
+		if tr.h.Data[i*n+i] != 0 {
+			return false
+		}
+	}
+	return true
+}
+
+// sweep is one pass, with the closed-form dark basis if w.fast and the
+// working subspace allows it (w.fast then stays true); ok is false if it must be run again without.
+func (w *Wilson) sweep(loop Loop, n, ns int) (gap Gap, ok bool, err error) {
+	tr := w.tr
+	if err := w.start(loop, ns); err != nil {
+		return Gap{}, true, err
+	}
+	w.fast = w.fast && w.darkChosen()
+	fast := w.fast
+	gap = Gap{Min: tr.gap(), At: 0}
 	for j := 1; j < n; j++ {
 		s := float64(j) / float64(n)
-		if err := w.eval(loop, s, tr.h); err != nil {
-			return gap, err
+		if err := w.point(loop, s); err != nil {
+			return gap, true, err
 		}
-		tr.warm()
-		if g := tr.gap(); g < gap.Min {
+		var g float64
+		if fast {
+			if !starCouplings(w.s, w.p, w.hub, &w.b) {
+				return gap, false, nil
+			}
+			g = darkBasis(&w.b, tr.v.Data, tr.n, w.hub)
+		} else {
+			w.s.Hamiltonian(tr.h, w.p)
+			tr.warm()
+			g = tr.gap()
+		}
+		if g < gap.Min {
 			gap = Gap{Min: g, At: s}
 		}
 		for i := 0; i < ns; i++ {
@@ -243,12 +324,12 @@ func (w *Wilson) pass(loop Loop, n, ns int) (Gap, error) {
 		}
 	}
 	for i := 0; i < ns; i++ {
-		w.accumulate(&w.st[i], v0, 1)
+		w.accumulate(&w.st[i], w.v0, 1)
 	}
 	if gap.Min < tr.gapTol {
-		return gap, &GapError{S: gap.At, V: math.NaN(), Gap: gap.Min, Tol: tr.gapTol}
+		return gap, true, &GapError{S: gap.At, V: math.NaN(), Gap: gap.Min, Tol: tr.gapTol}
 	}
-	return gap, nil
+	return gap, true, nil
 }
 
 // accumulate multiplies the product of st by the unitary factors of the
@@ -259,6 +340,10 @@ func (w *Wilson) accumulate(st *stride, vnew *Mat, s float64) {
 	vn, vo := vnew.Data, st.vlast.Data
 	for _, c := range tr.cl {
 		d := c.d
+		if d == 2 {
+			w.accumulate2(st, vn, vo, c, s)
+			continue
+		}
 		wm, um := w.w[:d*d], w.u[:d*d]
 		for a := 0; a < d; a++ {
 			for b := 0; b < d; b++ {
@@ -289,6 +374,34 @@ func (w *Wilson) accumulate(st *stride, vnew *Mat, s float64) {
 			}
 		}
 	}
+}
+
+// accumulate2 is accumulate for one cluster of two states, unrolled.
+func (w *Wilson) accumulate2(st *stride, vn, vo []complex128, c cluster, s float64) {
+	n, k := w.tr.n, w.tr.k
+	var m00, m01, m10, m11 complex128
+	a, b := c.lo, c.lo+1
+	for r := 0; r < n; r++ {
+		na, nb := conjg(vn[r*n+a]), conjg(vn[r*n+b])
+		oa, ob := vo[r*n+a], vo[r*n+b]
+		m00 += na * oa
+		m01 += na * ob
+		m10 += nb * oa
+		m11 += nb * ob
+	}
+	wm, um := w.w[:4], w.u[:4]
+	wm[0], wm[1], wm[2], wm[3] = m00, m01, m10, m11
+	if s2 := w.tr.pol.factor(um, wm, 2); s2 < minOverlap2 && st.jump == nil {
+		st.jbuf = SamplingError{From: st.slast, To: s, Overlap: math.Sqrt(s2)}
+		st.jump = &st.jbuf
+	}
+	// Block ← U · block.
+	i0, i1 := c.off*k+c.off, (c.off+1)*k+c.off
+	p00, p01, p10, p11 := st.prod[i0], st.prod[i0+1], st.prod[i1], st.prod[i1+1]
+	st.prod[i0] = um[0]*p00 + um[1]*p10
+	st.prod[i0+1] = um[0]*p01 + um[1]*p11
+	st.prod[i1] = um[2]*p00 + um[3]*p10
+	st.prod[i1+1] = um[2]*p01 + um[3]*p11
 }
 
 // output writes Q_u P Q_u† into dst (k×k, row-major).

@@ -285,7 +285,11 @@ func TestWilsonConvergenceOrder(t *testing.T) {
 		if q < 1.95 {
 			t.Errorf("spin-½ cone at large N: order %.3f", q)
 		}
+		// The drift of the warm-started tracker (the closed-form dark
+		// basis of the tripod has none to accumulate, so take the general
+		// path here).
 		wt := NewWilson(Tripod())
+		wt.noFast = true
 		if _, err := wt.Loop(geoSmoothTripod, 65536, NewMat(2, 2)); err != nil {
 			t.Fatal(err)
 		}

@@ -2,6 +2,7 @@ package optimize
 
 import (
 	"context"
+	"errors"
 	"math"
 	"testing"
 
@@ -56,4 +57,28 @@ func BenchmarkObjectiveTripod(b *testing.B) {
 	for b.Loop() {
 		o.nominal(x)
 	}
+}
+
+// BenchmarkSearchTripodMultiStart: a multi-start search whose eight runs
+// all go to the end, the case the worker pool is for: a hardware penalty
+// that no loop meets (a constant 1e-3), so no run meets the target and
+// every starting point is tried. Run with -cpu 1,2 to see the pool's gain;
+// the result is the same for every GOMAXPROCS
+// (TestSearchSameOnAnyGOMAXPROCS). A search met in its first run, the
+// usual case for the tripod gates (BenchmarkSearchTripodH), gains nothing.
+func BenchmarkSearchTripodMultiStart(b *testing.B) {
+	s := tripodSearch(b, gate("H"), false, fourier1)
+	s.Restarts, s.MaxEvaluations = 8, 1000000 // runs end by convergence, not by the budget
+	s.Penalty = func([]float64) float64 { return 1e-3 }
+	var runs, evals int
+	b.ReportAllocs()
+	for b.Loop() {
+		res, err := s.Run(context.Background())
+		if res == nil || !errors.Is(err, ErrTargetNotReached) {
+			b.Fatal(err)
+		}
+		runs, evals = res.Restarts, res.Evaluations
+	}
+	b.ReportMetric(float64(runs), "runs/op")
+	b.ReportMetric(float64(evals), "evals/op")
 }

@@ -175,33 +175,61 @@ type lambdaEval struct {
 	prop   *holonomy.Propagator
 	p      holonomy.Point
 	h, u   *holonomy.Mat
+	cols   *holonomy.Mat // n×k: the computational columns of the propagator
 	blk    *holonomy.Mat
 	target *holonomy.Mat
 }
 
 func newLambdaEval(lc *LambdaCoupling, sc *holonomy.Scheme, scale []float64, target *holonomy.Mat) *lambdaEval {
-	n := sc.Dim()
+	n, k := sc.Dim(), len(sc.Computational)
 	return &lambdaEval{lc: lc, sc: sc, scale: scale, prop: holonomy.NewPropagator(n), p: sc.NewPoint(),
-		h: holonomy.NewMat(n, n), u: holonomy.NewMat(n, n), blk: holonomy.NewMat(2, 2), target: target}
+		h: holonomy.NewMat(n, n), u: holonomy.NewMat(n, n), cols: holonomy.NewMat(n, k), blk: holonomy.NewMat(k, k), target: target}
 }
 
-// gate sets e.u to the full propagator of segs, each a square pulse of unit
-// peak Rabi frequency lasting Area (exact for resonant pulses of any
+// gate propagates the computational columns of segs, each a square pulse
+// of unit peak Rabi frequency lasting Area (exact for resonant pulses of any
 // envelope; with detunings it is the square-envelope propagator), and
-// returns the infidelity and leakage of its computational block.
+// returns the infidelity and leakage of the computational block: the
+// fidelity needs no other column. Each column is propagated on its own, so
+// the block is the same, bit for bit, as that of fullGate.
 func (e *lambdaEval) gate(segs []Segment) (infid, leak float64) {
+	comp := e.sc.Computational
+	e.cols.Zero()
+	for j, c := range comp {
+		e.cols.Set(c, j, 1)
+	}
+	e.steps(e.cols, segs)
+	for a, r := range comp {
+		for b := range comp {
+			e.blk.Set(a, b, e.cols.At(r, b))
+		}
+	}
+	return e.score()
+}
+
+// fullGate is gate with the full propagator, left in e.u.
+func (e *lambdaEval) fullGate(segs []Segment) (infid, leak float64) {
 	e.u.SetIdentity()
+	e.steps(e.u, segs)
+	holonomy.Block(e.blk, e.u, e.sc.Computational)
+	return e.score()
+}
+
+func (e *lambdaEval) steps(u *holonomy.Mat, segs []Segment) {
 	for _, g := range segs {
 		e.lc.point(g, e.p, e.scale)
 		e.sc.Hamiltonian(e.h, e.p)
-		e.prop.Step(e.u, e.h, g.Area)
+		e.prop.Step(u, e.h, g.Area)
 	}
-	holonomy.Block(e.blk, e.u, e.sc.Computational)
+}
+
+// score returns the infidelity and leakage of e.blk.
+func (e *lambdaEval) score() (infid, leak float64) {
 	var norm float64
 	for _, v := range e.blk.Data {
 		norm += real(v)*real(v) + imag(v)*imag(v)
 	}
-	return holonomy.BlockInfidelity(e.blk, e.target), math.Max(0, 1-norm/2)
+	return holonomy.BlockInfidelity(e.blk, e.target), math.Max(0, 1-norm/float64(e.blk.R))
 }
 
 // LambdaClosedForm returns the segments that make the 2×2 unitary target
@@ -495,7 +523,7 @@ func (s *LambdaSearch) result(lc *LambdaCoupling, x []float64, evals, restarts i
 	e := newLambdaEval(lc, s.Scheme, nil, s.Target)
 	x = append([]float64(nil), x...)
 	segs := segmentsFrom(s.Form, x, nil)
-	inf, leak := e.gate(segs)
+	inf, leak := e.fullGate(segs)
 	return &LambdaResult{Form: s.Form, Params: x, Segments: segs, U: e.u, Infidelity: inf, Leakage: leak,
 		Evaluations: evals, Restarts: restarts}
 }

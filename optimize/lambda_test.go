@@ -29,7 +29,7 @@ func TestLambdaLoopIsNSigma(t *testing.T) {
 	for _, a := range [][2]float64{{0, 0}, {math.Pi / 4, 0}, {1.1, -2.3}, {math.Pi, 0.4}} {
 		th, ph := a[0], a[1]
 		e := newLambdaEval(lc, sc, nil, gate("I"))
-		e.gate([]Segment{{Theta: th, Phi: ph, Area: 2 * math.Pi}})
+		e.fullGate([]Segment{{Theta: th, Phi: ph, Area: 2 * math.Pi}})
 		want := holonomy.NewMatFrom(3, 3, []complex128{
 			complex(math.Cos(th), 0), cmplx.Rect(math.Sin(th), -ph), 0,
 			cmplx.Rect(math.Sin(th), ph), complex(-math.Cos(th), 0), 0,
@@ -53,7 +53,7 @@ func TestLambdaHalfPulses(t *testing.T) {
 	lc, _ := NewLambdaCoupling(sc)
 	th, ph, chi := 0.7, 0.3, 1.9
 	e := newLambdaEval(lc, sc, nil, gate("I"))
-	e.gate([]Segment{{Theta: th, Phi: ph, Area: math.Pi}, {Theta: th, Phi: ph, Phase: chi, Area: math.Pi}})
+	e.fullGate([]Segment{{Theta: th, Phi: ph, Area: math.Pi}, {Theta: th, Phi: ph, Phase: chi, Area: math.Pi}})
 	d := []complex128{complex(math.Cos(th/2), 0), cmplx.Rect(math.Sin(th/2), ph)}
 	b := []complex128{cmplx.Rect(math.Sin(th/2), -ph), complex(-math.Cos(th/2), 0)}
 	f := -cmplx.Exp(complex(0, -chi))
@@ -96,7 +96,7 @@ func TestLambdaClosedForm(t *testing.T) {
 				t.Fatal(err)
 			}
 			e := newLambdaEval(lc, sc, nil, tg)
-			inf, leak := e.gate(segs)
+			inf, leak := e.fullGate(segs)
 			fid, leak2 := holonomy.GateFidelity(e.u, sc.Computational, tg)
 			if inf > 1e-12 || leak > 1e-12 || 1-fid > 1e-12 || leak2 > 1e-12 {
 				t.Errorf("%s, %v: infidelity %.3g (GateFidelity %.3g), leakage %.3g", name, form, inf, 1-fid, leak)
@@ -271,5 +271,35 @@ func TestLambdaCouplingErrors(t *testing.T) {
 	}
 	if _, err := LambdaClosedForm(holonomy.Identity(3), SingleLoop); err == nil {
 		t.Error("3×3 target: want an error")
+	}
+}
+
+// TestLambdaColumnsMatchFull: the search propagates only the computational
+// columns; their block, infidelity and leakage equal those of the full
+// propagator bit for bit (each column is propagated on its own), with and
+// without detunings.
+func TestLambdaColumnsMatchFull(t *testing.T) {
+	rng := rand.New(rand.NewPCG(31, 32))
+	for _, det := range []float64{0, 0.3} {
+		sc := holonomy.Lambda()
+		sc.Levels[2].Detuning = det
+		sc.Levels[1].Detuning = det / 7
+		lc, err := NewLambdaCoupling(sc)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for rep := 0; rep < 20; rep++ {
+			segs := []Segment{
+				{Theta: math.Pi * rng.Float64(), Phi: 2 * math.Pi * rng.Float64(), Area: 4 * rng.Float64()},
+				{Theta: math.Pi * rng.Float64(), Phi: 2 * math.Pi * rng.Float64(), Phase: rng.Float64(), Area: 4 * rng.Float64()},
+			}
+			e := newLambdaEval(lc, sc, nil, gate("H"))
+			i1, l1 := e.gate(segs)
+			b1 := e.blk.Clone()
+			i2, l2 := e.fullGate(segs)
+			if i1 != i2 || l1 != l2 || holonomy.FrobeniusDist(b1, e.blk) != 0 {
+				t.Errorf("detuning %g rep %d: columns (%g, %g), full (%g, %g), blocks differ by %g", det, rep, i1, l1, i2, l2, holonomy.FrobeniusDist(b1, e.blk))
+			}
+		}
 	}
 }

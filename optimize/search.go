@@ -5,6 +5,8 @@ import (
 	"errors"
 	"fmt"
 	"math/rand/v2"
+	"runtime"
+	"sync"
 
 	"github.com/loopgate/loopgate/holonomy"
 )
@@ -93,7 +95,8 @@ type Search struct {
 	// Penalty, if not nil, adds hardware penalties for parameters x (to
 	// evaluate them, set them on a clone of Shape). It must be
 	// deterministic, return 0 for acceptable loops and a positive amount
-	// otherwise, and not keep x.
+	// otherwise, and not keep x. The search calls it from one goroutine at
+	// a time (its restarts run concurrently, with the calls serialised).
 	Penalty func(x []float64) float64
 	// InitialScale is the half-width of the uniform distribution of the
 	// random starting parameters; zero means 1.
@@ -147,6 +150,7 @@ type Result struct {
 type searchConfig struct {
 	restarts, maxEvals, points, robustEvals int
 	target, lambda, scale, checkTol         float64
+	penalty                                 func([]float64) float64 // Search.Penalty, one call at a time
 }
 
 func (s *Search) config() searchConfig {
@@ -178,6 +182,16 @@ func (s *Search) config() searchConfig {
 	}
 	if c.checkTol <= 0 {
 		c.checkTol = 1e-7
+	}
+	if pen := s.Penalty; pen != nil {
+		// The search's workers share the caller's penalty, which need not
+		// be safe for concurrent use.
+		var mu sync.Mutex
+		c.penalty = func(x []float64) float64 {
+			mu.Lock()
+			defer mu.Unlock()
+			return pen(x)
+		}
 	}
 	return c
 }
@@ -212,9 +226,10 @@ type objective struct {
 	n       int
 	lambda  float64
 	penalty func([]float64) float64
-	a, b    []float64 // length scratch
-	chords  int       // samples of the length
-	members []*member // robust stage only
+	a, b    []float64      // length scratch
+	chords  int            // samples of the length
+	members []*member      // robust stage only
+	groups  []*memberGroup // the members shared out among goroutines
 	per     []float64
 }
 
@@ -238,7 +253,7 @@ func newObjective(s *Search, c searchConfig) *objective {
 	sh := s.Shape.Clone()
 	d := sh.Control().Dim()
 	o := &objective{shape: sh, w: holonomy.NewWilson(s.Scheme), u: holonomy.NewMat(k, k), target: s.Target,
-		n: c.points, lambda: c.lambda, penalty: s.Penalty, a: make([]float64, d), b: make([]float64, d)}
+		n: c.points, lambda: c.lambda, penalty: c.penalty, a: make([]float64, d), b: make([]float64, d)}
 	o.loop = sh.Point
 	o.chords = lengthPoints(sh)
 	return o
@@ -272,15 +287,65 @@ func (o *objective) nominal(x []float64) (total, infid, pen float64) {
 func (o *objective) robust(x []float64) (total, infid, pen float64) {
 	o.shape.SetParams(x)
 	l, p := o.parts(x)
-	for i, m := range o.members {
-		if _, err := m.w.Loop(m.loop, o.n, o.u); err != nil {
-			o.per[i] = 1
-			continue
-		}
-		o.per[i] = holonomy.BlockInfidelity(o.u, o.target)
-	}
+	o.memberInfidelities(x, o.n, o.per)
 	mean, _ := meanMax(o.per)
 	return mean + l + p, mean, p
+}
+
+// memberGroup is the share of the ensemble members one goroutine evaluates:
+// members g, g+G, g+2G, … of G groups, on the group's own copy of the shape.
+type memberGroup struct {
+	shape   Shape
+	u       *holonomy.Mat
+	members []int
+}
+
+// memberInfidelities writes into out the infidelity of every member at
+// the shape parameters x with n loop points (1 where the Wilson loop
+// fails). The groups run concurrently; each member's value depends only on
+// x, so out is the same for any number of groups.
+func (o *objective) memberInfidelities(x []float64, n int, out []float64) {
+	one := func(g *memberGroup) {
+		g.shape.SetParams(x)
+		for _, i := range g.members {
+			m := o.members[i]
+			out[i] = 1
+			if _, err := m.w.Loop(m.loop, n, g.u); err == nil {
+				out[i] = holonomy.BlockInfidelity(g.u, o.target)
+			}
+		}
+	}
+	var wg sync.WaitGroup
+	for gi := 1; gi < len(o.groups); gi++ {
+		wg.Add(1)
+		go func(g *memberGroup) {
+			defer wg.Done()
+			one(g)
+		}(o.groups[gi])
+	}
+	one(o.groups[0])
+	wg.Wait()
+}
+
+// groupMembers shares the members among min(GOMAXPROCS, members) groups,
+// the first on o's shape, the others on clones, and points every member's
+// loop at its group's shape.
+func (o *objective) groupMembers() {
+	ng := max(1, min(runtime.GOMAXPROCS(0), len(o.members)))
+	k := o.u.R
+	o.groups = make([]*memberGroup, ng)
+	for g := range o.groups {
+		sh := o.shape
+		if g > 0 {
+			sh = o.shape.Clone()
+		}
+		o.groups[g] = &memberGroup{shape: sh, u: holonomy.NewMat(k, k)}
+	}
+	for i, m := range o.members {
+		g := o.groups[i%ng]
+		g.members = append(g.members, i)
+		m.base = g.shape.Point
+	}
 }
 
 // Run performs the search and the final check. It honours ctx between
@@ -298,8 +363,10 @@ func (s *Search) Run(ctx context.Context) (*Result, error) {
 		return nil, err
 	}
 	o := newObjective(s, c)
-	dim, scale := s.Shape.NumParams(), c.scale
-	best, err := s.newMultiStart(o, c).run(ctx)
+	dim := s.Shape.NumParams()
+	scale := c.scale
+	ms := s.nominalStarts(o, c)
+	best, err := ms.run(ctx)
 	if err != nil {
 		return nil, err
 	}
@@ -354,11 +421,12 @@ func (s *Search) Run(ctx context.Context) (*Result, error) {
 	return res, nil
 }
 
-// newMultiStart returns the seeded multi-start Nelder–Mead of Run on the
-// nominal objective o, with starting points drawn uniformly from
-// [−scale, scale] in every parameter (and s.Start first when given).
-func (s *Search) newMultiStart(o *objective, c searchConfig) *multiStart {
-	dim, scale := s.Shape.NumParams(), c.scale
+// nominalStarts sets up the multi-start nominal search. Its restarts run on
+// a worker pool, each worker with its own shape, Wilson workspace and
+// objective (worker 0 uses o).
+func (s *Search) nominalStarts(o *objective, c searchConfig) *multiStart {
+	dim := s.Shape.NumParams()
+	scale := c.scale
 	ms := &multiStart{
 		dim: dim, restarts: c.restarts, maxEvals: c.maxEvals, target: c.target, goal: searchMargin * c.target,
 		simplex: 0.25 * scale, patience: 30 * dim, progress: 1e-3,
@@ -368,8 +436,13 @@ func (s *Search) newMultiStart(o *objective, c searchConfig) *multiStart {
 				x[i] = (2*rng.Float64() - 1) * scale
 			}
 		},
-		eval:       o.nominal,
 		needTarget: true,
+		newEval: func(i int) evalFunc {
+			if i == 0 {
+				return o.nominal
+			}
+			return newObjective(s, c).nominal
+		},
 	}
 	if s.Start != nil {
 		ms.starts = [][]float64{s.Start}
@@ -419,17 +492,12 @@ func (s *Search) robust(ctx context.Context, o *objective, x0 []float64, c searc
 		m.loop = m.point
 		o.members = append(o.members, m)
 	}
+	o.groupMembers()
 	o.per = make([]float64, len(o.members))
 	// Accurate per-member values with four times the search's points.
 	measure := func(x []float64) []float64 {
-		o.shape.SetParams(x)
 		out := make([]float64, len(o.members))
-		for i, m := range o.members {
-			out[i] = 1
-			if _, err := m.w.Loop(m.loop, 4*o.n, o.u); err == nil {
-				out[i] = holonomy.BlockInfidelity(o.u, o.target)
-			}
-		}
+		o.memberInfidelities(x, 4*o.n, out)
 		return out
 	}
 	return robustStage(ctx, s.Ensemble, x0, o.robust, measure, c.robustEvals, 0.05*c.scale, c.target)
