@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"errors"
+	"github.com/loopgate/loopgate/design/batch/batchtest"
 	"io/fs"
 	"os"
 	"os/exec"
@@ -60,26 +61,7 @@ func slurm(t *testing.T, name string, args ...string) string {
 	return strings.TrimSpace(string(out))
 }
 
-// files reads the files under dir/sub (or the file dir/sub) by path.
-func files(t *testing.T, dir string, subs ...string) map[string][]byte {
-	t.Helper()
-	out := map[string][]byte{}
-	for _, sub := range subs {
-		err := filepath.WalkDir(filepath.Join(dir, sub), func(p string, d fs.DirEntry, err error) error {
-			if err != nil || d.IsDir() {
-				return err
-			}
-			b, err := os.ReadFile(p)
-			rel, _ := filepath.Rel(dir, p)
-			out[rel] = b
-			return err
-		})
-		if err != nil {
-			t.Fatal(err)
-		}
-	}
-	return out
-}
+var files = batchtest.ReadTree
 
 // TestSlurmArray submits the demo table (4 sites × 2 gates) as a real
 // Slurm array and checks that the collected outputs equal a local run's

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"errors"
+	"github.com/loopgate/loopgate/design/batch/batchtest"
 	"io/fs"
 	"os"
 	"path/filepath"
@@ -22,26 +23,7 @@ func planDemo(t *testing.T, gates ...string) string {
 	return work
 }
 
-// tree reads every file under dir/sub into a map keyed by relative path.
-func tree(t *testing.T, dir string, subs ...string) map[string][]byte {
-	t.Helper()
-	out := map[string][]byte{}
-	for _, sub := range subs {
-		err := filepath.WalkDir(filepath.Join(dir, sub), func(p string, d fs.DirEntry, err error) error {
-			if err != nil || d.IsDir() {
-				return err
-			}
-			b, err := os.ReadFile(p)
-			rel, _ := filepath.Rel(dir, p)
-			out[rel] = b
-			return err
-		})
-		if err != nil {
-			t.Fatal(err)
-		}
-	}
-	return out
-}
+var tree = batchtest.ReadTree
 
 func sameTrees(t *testing.T, what string, a, b map[string][]byte) {
 	t.Helper()
